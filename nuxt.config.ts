@@ -1,0 +1,41 @@
+// https://nuxt.com/docs/api/configuration/nuxt-config
+export default defineNuxtConfig({
+  compatibilityDate: '2025-07-15',
+  devtools: { enabled: false },
+  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils'],
+  css: ['@fontsource/inter/400.css', '@fontsource/inter/500.css', '@fontsource/inter/600.css', '@fontsource/roboto-mono/400.css', '@fontsource/roboto-mono/500.css'],
+  tailwindcss: { cssPath: '~/assets/css/tailwind.css' },
+  app: {
+    head: {
+      title: 'Linewise',
+      htmlAttrs: { lang: 'en' },
+      meta: [{ name: 'description', content: 'Video level checks against your delivery spec' }],
+      link: [{ rel: 'icon', type: 'image/svg+xml', href: '/favicon.svg' }],
+    },
+  },
+  // Every value here is overridden at run time by NUXT_<NAME> (e.g. NUXT_DATABASE_URL);
+  // the worker reads the same variables, so one set of settings drives both processes.
+  runtimeConfig: {
+    databaseUrl: '',
+    redisUrl: '',
+    s3Endpoint: '',
+    s3Region: 'us-east-1',
+    s3Bucket: 'linewise',
+    s3AccessKeyId: '',
+    s3SecretAccessKey: '',
+    smtpUrl: '',
+    mailFrom: 'Linewise <no-reply@linewise.local>',
+    session: {
+      name: 'linewise-session',
+      maxAge: 60 * 60 * 24 * 7,
+      cookie: { sameSite: 'lax', httpOnly: true },
+    },
+    public: {
+      appUrl: 'http://127.0.0.1:3000',
+    },
+  },
+  nitro: {
+    experimental: { tasks: false },
+  },
+  typescript: { strict: true },
+})

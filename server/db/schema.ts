@@ -1,0 +1,118 @@
+import { relations, sql } from 'drizzle-orm'
+import {
+  bigint, boolean, char, datetime, index, int, json, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar,
+} from 'drizzle-orm/mysql-core'
+import { ROLES } from '../../shared/utils/roles'
+
+// MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
+const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
+const ref = (name: string) => bigint(name, { mode: 'number', unsigned: true })
+const timestamps = {
+  createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+  updatedAt: timestamp('updated_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`).onUpdateNow(),
+}
+
+export const users = mysqlTable('users', {
+  id: id(),
+  email: varchar('email', { length: 254 }).notNull(),
+  name: varchar('name', { length: 120 }).notNull(),
+  passwordHash: varchar('password_hash', { length: 255 }).notNull(),
+  ...timestamps,
+}, (t) => [uniqueIndex('users_email_uq').on(t.email)])
+
+export const teams = mysqlTable('teams', {
+  id: id(),
+  name: varchar('name', { length: 120 }).notNull(),
+  ...timestamps,
+})
+
+export const memberships = mysqlTable('memberships', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  userId: ref('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  role: mysqlEnum('role', ROLES).notNull(),
+  ...timestamps,
+}, (t) => [uniqueIndex('memberships_team_user_uq').on(t.teamId, t.userId), index('memberships_user_idx').on(t.userId)])
+
+export const invitations = mysqlTable('invitations', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  email: varchar('email', { length: 254 }).notNull(),
+  role: mysqlEnum('role', ROLES).notNull(),
+  // Only the SHA-256 of the token is stored: a leaked table cannot be used to join a team.
+  tokenHash: char('token_hash', { length: 64 }).notNull(),
+  invitedBy: ref('invited_by').references(() => users.id, { onDelete: 'set null' }),
+  expiresAt: datetime('expires_at', { mode: 'date' }).notNull(),
+  acceptedAt: datetime('accepted_at', { mode: 'date' }),
+  revokedAt: datetime('revoked_at', { mode: 'date' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('invitations_token_uq').on(t.tokenHash), index('invitations_team_idx').on(t.teamId)])
+
+export const passwordResets = mysqlTable('password_resets', {
+  id: id(),
+  userId: ref('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  tokenHash: char('token_hash', { length: 64 }).notNull(),
+  expiresAt: datetime('expires_at', { mode: 'date' }).notNull(),
+  usedAt: datetime('used_at', { mode: 'date' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('password_resets_token_uq').on(t.tokenHash)])
+
+export const deliverySpecs = mysqlTable('delivery_specs', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  // The built-in spec this one was copied from, if any (e.g. "ntsc-setup").
+  builtin: varchar('builtin', { length: 64 }),
+  name: varchar('name', { length: 120 }).notNull(),
+  version: int('version').notNull().default(1),
+  body: json('body').notNull(),
+  ...timestamps,
+}, (t) => [index('delivery_specs_team_idx').on(t.teamId)])
+
+export const productions = mysqlTable('productions', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  name: varchar('name', { length: 160 }).notNull(),
+  client: varchar('client', { length: 160 }).notNull().default(''),
+  deliverySpecId: ref('delivery_spec_id').references(() => deliverySpecs.id, { onDelete: 'set null' }),
+  createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
+  archived: boolean('archived').notNull().default(false),
+  ...timestamps,
+}, (t) => [index('productions_team_idx').on(t.teamId)])
+
+export const reels = mysqlTable('reels', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  productionId: ref('production_id').notNull().references(() => productions.id, { onDelete: 'cascade' }),
+  name: varchar('name', { length: 160 }).notNull(),
+  sourceLabel: varchar('source_label', { length: 120 }).notNull().default(''),
+  sourceRange: mysqlEnum('source_range', ['full', 'studio']).notNull().default('full'),
+  matrix: mysqlEnum('matrix', ['601', '709']).notNull().default('601'),
+  createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [index('reels_production_idx').on(t.productionId), index('reels_team_idx').on(t.teamId)])
+
+export const auditLog = mysqlTable('audit_log', {
+  id: id(),
+  teamId: ref('team_id').references(() => teams.id, { onDelete: 'cascade' }),
+  actorId: ref('actor_id').references(() => users.id, { onDelete: 'set null' }),
+  action: varchar('action', { length: 64 }).notNull(),
+  subjectType: varchar('subject_type', { length: 32 }).notNull(),
+  subjectId: ref('subject_id'),
+  details: json('details'),
+  createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+}, (t) => [index('audit_team_idx').on(t.teamId, t.createdAt)])
+
+export const usersRelations = relations(users, ({ many }) => ({ memberships: many(memberships) }))
+export const teamsRelations = relations(teams, ({ many }) => ({ memberships: many(memberships), productions: many(productions) }))
+export const membershipsRelations = relations(memberships, ({ one }) => ({
+  team: one(teams, { fields: [memberships.teamId], references: [teams.id] }),
+  user: one(users, { fields: [memberships.userId], references: [users.id] }),
+}))
+export const productionsRelations = relations(productions, ({ one, many }) => ({
+  team: one(teams, { fields: [productions.teamId], references: [teams.id] }),
+  reels: many(reels),
+  deliverySpec: one(deliverySpecs, { fields: [productions.deliverySpecId], references: [deliverySpecs.id] }),
+}))
+export const reelsRelations = relations(reels, ({ one }) => ({
+  production: one(productions, { fields: [reels.productionId], references: [productions.id] }),
+}))
