@@ -1,0 +1,40 @@
+// Level distributions: bins centred on multiples of a quarter code, wide enough for the
+// composite extremes of any legal or illegal Y'CbCr (Y ± 219·C stays within −190…+445).
+export const LEVEL_MIN = -256
+export const LEVEL_STEP = 0.25
+export const LEVEL_BINS = 3072
+
+export function levelBin(code8: number): number {
+  const i = ((code8 - LEVEL_MIN) * 4 + 0.5) | 0
+  return i < 0 ? 0 : i >= LEVEL_BINS ? LEVEL_BINS - 1 : i
+}
+
+/**
+ * Nearest-rank percentile: the smallest level whose cumulative count reaches ⌈p·N⌉ (at least
+ * one sample), read as the bin centre.
+ */
+export function percentile(dist: Uint32Array, n: number, p: number, min = LEVEL_MIN, step = LEVEL_STEP): number {
+  const rank = Math.max(1, Math.ceil(p * n - 1e-9))
+  let acc = 0
+  for (let i = 0; i < dist.length; i++) {
+    acc += dist[i]!
+    if (acc >= rank) return min + i * step
+  }
+  return min + (dist.length - 1) * step
+}
+
+/** Share of samples whose bin centre lies above `threshold`. */
+export function shareAbove(dist: Uint32Array, min: number, step: number, threshold: number, n: number): number {
+  const first = Math.max(0, Math.floor((threshold - min) / step + 1e-9) + 1)
+  let s = 0
+  for (let i = first; i < dist.length; i++) s += dist[i]!
+  return s / n
+}
+
+/** Share of samples whose bin centre lies below `threshold`. */
+export function shareBelow(dist: Uint32Array, min: number, step: number, threshold: number, n: number): number {
+  const last = Math.min(dist.length - 1, Math.ceil((threshold - min) / step - 1e-9) - 1)
+  let s = 0
+  for (let i = 0; i <= last; i++) s += dist[i]!
+  return s / n
+}

@@ -1,0 +1,273 @@
+import { EngineInputError, makeRowBuffers, makeRowSource } from './decode'
+import { resolveMatrix } from './analyse'
+import { barTargets, MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
+import { fromScale } from './scales'
+import type { LevelScale } from './scales'
+import type { DeliverySpec } from './specs'
+import type { FrameInput, Histograms, MatrixName, RgbaImage, VectorscopeDensity, WaveformDensity } from './types'
+
+type Rgb = readonly [number, number, number]
+
+/** Linewise's own palette (a dark grading-room look; not taken from any instrument). */
+export const PALETTE = {
+  background: [13, 16, 22] as Rgb,
+  graticule: [54, 62, 76] as Rgb,
+  graticuleLabel: [120, 132, 150] as Rgb,
+  /** Setup (7.5 IRE) and white (100 IRE) lines, and the bar targets. */
+  keyLine: [222, 158, 72] as Rgb,
+  lumaTrace: [150, 232, 214] as Rgb,
+  flatTrace: [236, 196, 128] as Rgb,
+  red: [236, 84, 84] as Rgb,
+  green: [96, 214, 120] as Rgb,
+  blue: [100, 140, 250] as Rgb,
+  vectorTrace: [196, 226, 255] as Rgb,
+  /** Range overlay: levels above a limit, and below one. */
+  overlayHigh: [255, 48, 150] as Rgb,
+  overlayLow: [24, 170, 255] as Rgb,
+} as const
+
+// A 3×5 pixel font of our own, enough for graticule labels.
+const GLYPHS: Record<string, string> = {
+  '0': '111101101101111', '1': '010110010010111', '2': '111001111100111', '3': '111001111001111',
+  '4': '101101111001001', '5': '111100111001111', '6': '111100111101111', '7': '111001010010010',
+  '8': '111101111101111', '9': '111101111001111', '-': '000000111000000', '.': '000000000000010',
+  'Y': '101101010010010', 'C': '111100100100111', 'G': '111100101101111', 'M': '101111101101101',
+  'R': '110101110101101', 'B': '110101110101110', '%': '101001010100101',
+}
+
+class Canvas {
+  readonly data: Uint8ClampedArray
+  constructor(readonly width: number, readonly height: number, bg: Rgb) {
+    this.data = new Uint8ClampedArray(width * height * 4)
+    for (let i = 0; i < width * height; i++) {
+      this.data[i * 4] = bg[0]; this.data[i * 4 + 1] = bg[1]; this.data[i * 4 + 2] = bg[2]; this.data[i * 4 + 3] = 255
+    }
+  }
+
+  set(x: number, y: number, c: Rgb): void {
+    if (x < 0 || y < 0 || x >= this.width || y >= this.height) return
+    const i = ((y | 0) * this.width + (x | 0)) * 4
+    this.data[i] = c[0]; this.data[i + 1] = c[1]; this.data[i + 2] = c[2]
+  }
+
+  add(x: number, y: number, c: Rgb, k: number): void {
+    const i = (y * this.width + x) * 4
+    this.data[i] = this.data[i]! + c[0] * k
+    this.data[i + 1] = this.data[i + 1]! + c[1] * k
+    this.data[i + 2] = this.data[i + 2]! + c[2] * k
+  }
+
+  hline(x0: number, x1: number, y: number, c: Rgb, dash = 0): void {
+    for (let x = x0; x < x1; x++) if (!dash || ((x - x0) % (2 * dash)) < dash) this.set(x, y, c)
+  }
+
+  vline(x: number, y0: number, y1: number, c: Rgb): void {
+    for (let y = y0; y < y1; y++) this.set(x, y, c)
+  }
+
+  text(x: number, y: number, s: string, c: Rgb): void {
+    let cx = x
+    for (const ch of s) {
+      const g = GLYPHS[ch]
+      if (g) for (let i = 0; i < 15; i++) if (g[i] === '1') this.set(cx + (i % 3), y + Math.floor(i / 3), c)
+      cx += 4
+    }
+  }
+
+  image(): RgbaImage {
+    return { width: this.width, height: this.height, data: this.data }
+  }
+}
+
+// log scaling: a lone pixel stays visible while a flat field saturates.
+function intensity(count: number, ref: number): number {
+  if (!count) return 0
+  const k = Math.log1p(count) / Math.log1p(ref)
+  return k > 1 ? 1 : k
+}
+
+export type WaveformMode = 'luma' | 'flat' | 'both' | 'rgb'
+
+const GUTTER = 22
+const GRATICULE_IRE = [-20, 0, 20, 40, 60, 80, 120]
+
+/** Waveform (luma, flat, both overlaid, or the RGB split side by side) with an IRE graticule. */
+export function renderWaveform(w: WaveformDensity, mode: WaveformMode = 'luma'): RgbaImage {
+  const panes = mode === 'rgb' ? 3 : 1
+  const gap = 4
+  const width = GUTTER + panes * w.columns + (panes - 1) * gap
+  const cv = new Canvas(width, w.rows, PALETTE.background)
+  const rowOf = (ire: number) => w.rows - 1 - Math.floor((ire - w.ireBottom) * w.rows / (w.ireTop - w.ireBottom))
+  for (const ire of GRATICULE_IRE) {
+    const y = rowOf(ire)
+    cv.hline(GUTTER, width, y, PALETTE.graticule)
+    cv.text(1, y - 2, String(ire), PALETTE.graticuleLabel)
+  }
+  cv.hline(GUTTER, width, rowOf(100), PALETTE.keyLine)
+  cv.text(1, rowOf(100) - 2, '100', PALETTE.keyLine)
+  cv.hline(GUTTER, width, rowOf(7.5), PALETTE.keyLine, 3)
+  cv.text(1, rowOf(7.5) - 2, '7.5', PALETTE.keyLine)
+
+  const perColumn = (w.decimation * totalOf(w.luma)) / (w.columns * w.decimation)
+  const ref = Math.max(2, perColumn / 16)
+  const layers: Array<{ d: Uint32Array, c: Rgb, pane: number, k: number }> = []
+  if (mode === 'luma' || mode === 'both') layers.push({ d: w.luma, c: PALETTE.lumaTrace, pane: 0, k: 1 })
+  if (mode === 'flat' || mode === 'both') layers.push({ d: w.flat, c: PALETTE.flatTrace, pane: 0, k: mode === 'both' ? 0.8 : 1 })
+  if (mode === 'rgb') {
+    layers.push({ d: w.rgb.r, c: PALETTE.red, pane: 0, k: 1 }, { d: w.rgb.g, c: PALETTE.green, pane: 1, k: 1 }, { d: w.rgb.b, c: PALETTE.blue, pane: 2, k: 1 })
+  }
+  for (const layer of layers) {
+    const x0 = GUTTER + layer.pane * (w.columns + gap)
+    for (let row = 0; row < w.rows; row++) {
+      const py = w.rows - 1 - row
+      for (let col = 0; col < w.columns; col++) {
+        const n = layer.d[row * w.columns + col]!
+        if (n) cv.add(x0 + col, py, layer.c, intensity(n, ref) * layer.k)
+      }
+    }
+  }
+  return cv.image()
+}
+
+function totalOf(d: Uint32Array): number {
+  let s = 0
+  for (let i = 0; i < d.length; i++) s += d[i]!
+  return s
+}
+
+/** Vectorscope (U right, V up) with the 75 % and 100 % bar targets of the given matrix. */
+export function renderVectorscope(v: VectorscopeDensity, opts: { matrix?: MatrixName, scale?: number } = {}): RgbaImage {
+  const matrix = resolveMatrix(opts.matrix)
+  const scale = Math.max(1, Math.floor(opts.scale ?? 2))
+  const size = v.size * scale
+  const cv = new Canvas(size, size, PALETTE.background)
+  const px = (u: number) => Math.floor((u + v.extent) / (2 * v.extent) * size)
+  const py = (vv: number) => Math.floor((v.extent - vv) / (2 * v.extent) * size)
+  const cx = px(0); const cy = py(0)
+  cv.hline(0, size, cy, PALETTE.graticule)
+  cv.vline(cx, 0, size, PALETTE.graticule)
+  // Rings every 0.1 of chroma amplitude: read off saturation without a separate scale.
+  for (let ring = 0.1; ring < v.extent; ring += 0.1) {
+    const rpx = ring / (2 * v.extent) * size
+    const steps = Math.ceil(rpx * 8)
+    for (let i = 0; i < steps; i += 2) {
+      const a = (i / steps) * 2 * Math.PI
+      cv.set(Math.round(cx + rpx * Math.cos(a)), Math.round(cy - rpx * Math.sin(a)), PALETTE.graticule)
+    }
+  }
+  // Burst sits at 180° (REFERENCE.md §4): a short stub on the −U axis.
+  cv.hline(px(-0.15), cx, cy + 1, PALETTE.graticuleLabel)
+
+  const ref = Math.max(2, totalOf(v.data) / 400)
+  for (let r = 0; r < v.size; r++) {
+    for (let c = 0; c < v.size; c++) {
+      const n = v.data[r * v.size + c]!
+      if (!n) continue
+      const k = intensity(n, ref)
+      for (let dy = 0; dy < scale; dy++) for (let dx = 0; dx < scale; dx++) cv.add(c * scale + dx, r * scale + dy, PALETTE.vectorTrace, k)
+    }
+  }
+  const letters: Record<string, string> = { yellow: 'Y', cyan: 'C', green: 'G', magenta: 'M', red: 'R', blue: 'B' }
+  for (const t of barTargets(0.75, matrix)) {
+    // 75 % targets: a hollow ring of our own size; 100 % targets: a small plus.
+    const x = px(t.u); const y = py(t.v)
+    for (let i = 0; i < 48; i++) {
+      const a = i / 48 * 2 * Math.PI
+      cv.set(Math.round(x + 6 * Math.cos(a)), Math.round(y + 6 * Math.sin(a)), PALETTE.keyLine)
+    }
+    const len = Math.hypot(t.u, t.v)
+    const lx = px(t.u + t.u / len * 0.06) - 1; const ly = py(t.v + t.v / len * 0.06) - 2
+    cv.text(lx, ly, letters[t.name]!, PALETTE.graticuleLabel)
+  }
+  for (const t of barTargets(1, matrix)) {
+    const x = px(t.u); const y = py(t.v)
+    cv.hline(x - 4, x + 5, y, PALETTE.keyLine)
+    cv.vline(x, y - 4, y + 5, PALETTE.keyLine)
+  }
+  return cv.image()
+}
+
+/** Histograms of Y (filled) with R, G, B outlines, 0…bins−1 across. */
+export function renderHistogram(h: Histograms, opts: { height?: number } = {}): RgbaImage {
+  const height = opts.height ?? 160
+  const width = 512
+  const cv = new Canvas(width, height, PALETTE.background)
+  const binOf = (x: number) => Math.floor(x * h.bins / width)
+  const col = (d: Uint32Array, x: number) => {
+    const a = binOf(x); const b = Math.max(a + 1, binOf(x + 1))
+    let s = 0
+    for (let i = a; i < b; i++) s += d[i]!
+    return s / (b - a)
+  }
+  const peak = (d: Uint32Array) => {
+    let m = 1
+    for (let x = 0; x < width; x++) m = Math.max(m, col(d, x))
+    return m
+  }
+  // Studio black and white on the histogram's code axis.
+  const k = h.bins / 256
+  for (const code of [16 * k, 235 * k]) cv.vline(Math.round(code * width / h.bins), 0, height, PALETTE.keyLine)
+  const py = peak(h.y)
+  for (let x = 0; x < width; x++) {
+    const top = Math.round((col(h.y, x) / py) * (height - 1))
+    for (let y = 0; y < top; y++) cv.add(x, height - 1 - y, PALETTE.lumaTrace, 0.45)
+  }
+  for (const [d, c] of [[h.r, PALETTE.red], [h.g, PALETTE.green], [h.b, PALETTE.blue]] as const) {
+    const p = peak(d)
+    for (let x = 0; x < width; x++) cv.set(x, height - 1 - Math.round((col(d, x) / p) * (height - 1)), c)
+  }
+  return cv.image()
+}
+
+interface OverlayTest { q: 'luma' | 'composite' | 'rgb' | 'cb' | 'cr', max: boolean, t: number }
+
+/**
+ * The frame as RGBA (R'G'B' clipped to 0..255 for display) with every pixel beyond a limit
+ * of the spec painted: one colour for too high, another for too low.
+ */
+export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: { matrix?: MatrixName } = {}): RgbaImage {
+  const matrix = resolveMatrix(opts.matrix)
+  const src = makeRowSource(input, matrix)
+  const { width, height } = src
+  if (width * height > 64e6) throw new EngineInputError('frame too large for an overlay')
+  const tests: OverlayTest[] = spec.limits.map(l => ({
+    q: l.quantity, max: l.bound === 'max', t: fromScale(l.value, l.unit as LevelScale),
+  }))
+  const m = MATRICES[matrix]
+  const uK = U_WEIGHT * m.cbDiv
+  const vK = V_WEIGHT * m.crDiv
+  const out = new Uint8ClampedArray(width * height * 4)
+  const buf = makeRowBuffers(width)
+  const hi = PALETTE.overlayHigh; const lo = PALETTE.overlayLow
+  for (let row = 0; row < height; row++) {
+    src.readRow(row, buf)
+    for (let x = 0; x < width; x++) {
+      const o = (row * width + x) * 4
+      const y = buf.y[x]!
+      const u = uK * buf.pb[x]!; const v = vK * buf.pr[x]!
+      const c = 219 * Math.sqrt(u * u + v * v)
+      const r = buf.r[x]!; const g = buf.g[x]!; const b = buf.b[x]!
+      let mark: Rgb | undefined
+      for (const t of tests) {
+        let val: number
+        switch (t.q) {
+          case 'luma': val = y; break
+          case 'composite': val = t.max ? y + c : y - c; break
+          case 'rgb': val = 16 + 219 * (t.max ? Math.max(r, g, b) : Math.min(r, g, b)); break
+          case 'cb': val = 128 + 224 * buf.pb[x]!; break
+          case 'cr': val = 128 + 224 * buf.pr[x]!; break
+        }
+        // A quarter code of slack, as the verdict's level bins have (levels.ts).
+        if (t.max ? val > t.t + 0.125 : val < t.t - 0.125) { mark = t.max ? hi : lo; break }
+      }
+      if (mark) {
+        out[o] = mark[0]; out[o + 1] = mark[1]; out[o + 2] = mark[2]
+      }
+      else {
+        out[o] = r * 255 + 0.5; out[o + 1] = g * 255 + 0.5; out[o + 2] = b * 255 + 0.5
+      }
+      out[o + 3] = 255
+    }
+  }
+  return { width, height, data: out }
+}

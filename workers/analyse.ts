@@ -1,0 +1,151 @@
+// Command line: measure one frame grab and print a summary or JSON.
+// npm run --silent analyse -- FILE [--range full|studio] [--matrix 601|709]
+//   [--raw uyvy|v210 --width W --height H] [--spec NAME] [--line N] [--json]
+import { parseArgs } from 'node:util'
+import {
+  analyseFrame, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, ENGINE_VERSION, EngineInputError, formatShare,
+  LEVEL_SCALES, linePlot, MV_CONVENTION, SCALE_LABELS, toScale,
+} from '../shared/engine/index'
+import type { FrameAnalysis, LinePlot, MatrixName, SourceRange } from '../shared/engine/index'
+import { decodeFile, DecodeFileError } from './lib/decode-file'
+import type { RawKind } from './lib/decode-file'
+
+class UsageError extends Error {}
+
+const USAGE = `usage: analyse FILE [--range full|studio] [--matrix 601|709] [--raw uyvy|v210 --width W --height H]
+               [--spec ${BUILTIN_SPECS.map(s => s.name).join('|')}] [--line N] [--json]`
+
+function oneOf<T extends string>(v: string | undefined, allowed: readonly T[], what: string): T | undefined {
+  if (v === undefined) return undefined
+  if (!(allowed as readonly string[]).includes(v)) throw new UsageError(`${what} must be one of ${allowed.join(', ')} (got "${v}")`)
+  return v as T
+}
+
+function int(v: string | undefined, what: string): number | undefined {
+  if (v === undefined) return undefined
+  if (!/^\d+$/.test(v)) throw new UsageError(`${what} must be a whole number (got "${v}")`)
+  return Number(v)
+}
+
+const r3 = (v: number) => Math.round(v * 1000) / 1000
+const r6 = (v: number) => Math.round(v * 1e6) / 1e6
+
+function toJson(a: FrameAnalysis, specName: string, line?: LinePlot) {
+  const round = <T extends Record<string, number>>(o: T): T =>
+    Object.fromEntries(Object.entries(o).map(([k, v]) => [k, r3(v)])) as T
+  return {
+    engineVersion: ENGINE_VERSION,
+    width: a.width, height: a.height, bitDepth: a.bitDepth, matrix: a.matrix, range: a.range,
+    luma: round(a.luma),
+    lumaIre: round(a.lumaIre),
+    compositeIre: round(a.compositeIre),
+    chroma: round(a.chroma),
+    shares: Object.fromEntries(Object.entries(a.shares).map(([k, v]) => [k, r6(v)])),
+    spec: specName,
+    verdict: a.verdict,
+    reasons: a.reasons.map(r => ({ ...r, value: r3(r.value), share: r6(r.share) })),
+    ...(line
+      ? {
+          line: {
+            index: line.index,
+            samples: line.samples.map(s => ({
+              x: s.x, us: r3(s.us), lumaIre: r3(s.lumaIre), compMinIre: r3(s.compMinIre), compMaxIre: r3(s.compMaxIre),
+              chromaPpIre: r3(s.chromaPpIre), phaseDeg: s.phaseDeg === null ? null : r3(s.phaseDeg), r: r6(s.r), g: r6(s.g), b: r6(s.b),
+            })),
+          },
+        }
+      : {}),
+  }
+}
+
+function summary(file: string, a: FrameAnalysis, specName: string, line?: LinePlot): string {
+  const out: string[] = []
+  const f = (v: number, d = 1) => v.toFixed(d).padStart(8)
+  out.push(`${file}: ${a.width}×${a.height}, ${a.bitDepth}-bit, ${a.range} range, BT.${a.matrix}`)
+  out.push('')
+  out.push(`luma          ${['min', 'p1', 'p10', 'p50', 'mean', 'p90', 'p99', 'max'].map(k => k.padStart(8)).join('')}`)
+  for (const s of LEVEL_SCALES) {
+    const d = s === 'mv' || s === 'mvNtsc' || s === 'code10' ? 0 : s === 'code8' ? 2 : 1
+    const vals = (['min', 'p1', 'p10', 'p50', 'mean', 'p90', 'p99', 'max'] as const).map(k => f(toScale(a.luma[k], s), d))
+    out.push(`  ${SCALE_LABELS[s].padEnd(12).slice(0, 12)}${vals.join('')}`)
+  }
+  out.push(`  (mV: ${MV_CONVENTION})`)
+  out.push('')
+  out.push(`composite     ${f(a.compositeIre.min)} … ${a.compositeIre.max.toFixed(1)} IRE (7.5 setup)`)
+  out.push(`chroma        Cb ${a.chroma.cbMin.toFixed(1)}…${a.chroma.cbMax.toFixed(1)}, Cr ${a.chroma.crMin.toFixed(1)}…${a.chroma.crMax.toFixed(1)}, p-p max ${a.chroma.ppMaxIre.toFixed(1)} IRE`)
+  out.push('shares        ' + Object.entries(a.shares).map(([k, v]) => `${k} ${formatShare(v)}`).join(', '))
+  out.push('')
+  out.push(`verdict       ${a.verdict.toUpperCase()} against ${specName}`)
+  for (const r of a.reasons) out.push(`  ${r.severity === 'fail' ? 'FAIL' : 'CAUTION'}  ${r.message}`)
+  if (line) {
+    out.push('')
+    out.push(`line ${line.index}: x, µs, luma IRE, composite min/max IRE, chroma p-p IRE, phase°, R' G' B'`)
+    const step = Math.max(1, Math.ceil(line.samples.length / 24))
+    for (let i = 0; i < line.samples.length; i += step) {
+      const s = line.samples[i]!
+      out.push(`  ${String(s.x).padStart(5)} ${s.us.toFixed(3).padStart(8)} ${f(s.lumaIre)} ${f(s.compMinIre)} ${f(s.compMaxIre)} ${f(s.chromaPpIre)} ${s.phaseDeg === null ? '       –' : f(s.phaseDeg)}  ${s.r.toFixed(3)} ${s.g.toFixed(3)} ${s.b.toFixed(3)}`)
+    }
+    if (step > 1) out.push(`  (every ${step}th sample; --json gives all)`)
+  }
+  return out.join('\n')
+}
+
+async function main(argv: string[]): Promise<number> {
+  let parsed
+  try {
+    parsed = parseArgs({
+      args: argv,
+      allowPositionals: true,
+      options: {
+        range: { type: 'string' }, matrix: { type: 'string' }, raw: { type: 'string' },
+        width: { type: 'string' }, height: { type: 'string' }, spec: { type: 'string' },
+        line: { type: 'string' }, json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
+      },
+    })
+  }
+  catch (e) {
+    throw new UsageError((e as Error).message)
+  }
+  const { values: v, positionals } = parsed
+  if (v.help) {
+    process.stdout.write(USAGE + '\n')
+    return 0
+  }
+  if (positionals.length !== 1) throw new UsageError(positionals.length ? 'give exactly one FILE' : 'FILE is missing')
+  const file = positionals[0]!
+  const range = oneOf<SourceRange>(v.range, ['full', 'studio'], '--range')
+  const matrix = oneOf<MatrixName>(v.matrix, ['601', '709'], '--matrix')
+  const raw = oneOf<RawKind>(v.raw, ['uyvy', 'v210'], '--raw')
+  const width = int(v.width, '--width')
+  const height = int(v.height, '--height')
+  const lineIndex = int(v.line, '--line')
+  if (!raw && (width !== undefined || height !== undefined)) throw new UsageError('--width and --height go with --raw')
+  if (raw && range === 'full') throw new UsageError('raw Y\'CbCr is always studio range')
+  const specName = v.spec ?? DEFAULT_SPEC_NAME
+  const spec = builtinSpec(specName)
+  if (!spec) throw new UsageError(`unknown spec "${specName}" (built in: ${BUILTIN_SPECS.map(s => s.name).join(', ')})`)
+
+  const input = await decodeFile(file, { range, raw, width, height })
+  const a = analyseFrame(input, { matrix, spec })
+  const line = lineIndex === undefined ? undefined : linePlot(input, lineIndex, { matrix })
+  process.stdout.write(v.json ? JSON.stringify(toJson(a, spec.name, line)) + '\n' : summary(file, a, spec.name, line) + '\n')
+  return 0
+}
+
+main(process.argv.slice(2)).then(
+  (code) => { process.exitCode = code },
+  (e: unknown) => {
+    if (e instanceof UsageError) {
+      process.stderr.write(`analyse: ${e.message}\n${USAGE}\n`)
+      process.exitCode = 2
+    }
+    else if (e instanceof DecodeFileError || e instanceof EngineInputError) {
+      process.stderr.write(`analyse: ${e.message}\n`)
+      process.exitCode = 1
+    }
+    else {
+      process.stderr.write(`analyse: unexpected error: ${(e as Error).stack ?? String(e)}\n`)
+      process.exitCode = 70
+    }
+  },
+)
