@@ -1,0 +1,50 @@
+#!/usr/bin/env node
+// `npm test`: the same stack as `npm start` on its own ports, data folder and database,
+// then every test (unit, integration, browser). Exit status is vitest's.
+// Extra arguments go to vitest, e.g. `npm test -- tests/integration`.
+import { spawn } from 'node:child_process'
+import { randomBytes } from 'node:crypto'
+import { rmSync } from 'node:fs'
+import { join } from 'node:path'
+import { ensureDebian, profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
+import { ensureBuild, ensureNodeModules, log, migrateAndSeed, startApp, waitForHttp } from './stack.mjs'
+
+const p = profile('test')
+let stopApp = async () => {}
+let code = 1
+
+try {
+  ensureNodeModules()
+  // ffmpeg is the independent reference implementation in the engine tests; chromium runs the browser tests.
+  ensureDebian({ ffmpeg: 'ffmpeg', chromium: 'chromium' })
+  // A test run starts from nothing: leftovers of an interrupted run are stopped and wiped.
+  await stopServices(p)
+  for (const d of ['s3', 'mail']) rmSync(join(p.dataDir, d), { recursive: true, force: true })
+  await startServices(p)
+  resetDatabase(p)
+  const env = {
+    ...process.env,
+    ...serviceEnv(p),
+    NUXT_SESSION_PASSWORD: randomBytes(36).toString('base64url'),
+    LW_APP_URL: `http://127.0.0.1:${p.ports.app}`,
+  }
+  migrateAndSeed(env)
+  ensureBuild()
+  stopApp = startApp(env, { port: p.ports.app, quiet: true })
+  await waitForHttp(`${env.LW_APP_URL}/login`)
+  log('running tests')
+  code = await new Promise((resolve) => {
+    const child = spawn(process.execPath, [join(ROOT, 'node_modules/vitest/vitest.mjs'), 'run', ...process.argv.slice(2)], { cwd: ROOT, env, stdio: 'inherit' })
+    const forward = (sig) => child.kill(sig)
+    process.on('SIGINT', forward)
+    process.on('SIGTERM', forward)
+    child.on('exit', (c, sig) => resolve(c ?? (sig ? 1 : 0)))
+  })
+} catch (e) {
+  console.error(`[linewise] ${e.stack ?? e.message}`)
+  code = 1
+} finally {
+  await stopApp()
+  await stopServices(p)
+}
+process.exit(code)

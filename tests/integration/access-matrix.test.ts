@@ -1,0 +1,111 @@
+// Every protected route × every role × a member of another team. A route added to
+// server/api without a row here fails the first test, so the matrix grows with the API.
+import { readdirSync, statSync } from 'node:fs'
+import { join, relative } from 'node:path'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import * as t from '../../server/db/schema'
+import { CAN, ROLES, type Permission, type Role } from '../../shared/utils/roles'
+import { Client } from '../support/api'
+import { addMember, closeDb, createProduction, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
+
+type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number }
+interface Route {
+  method: 'GET' | 'POST' | 'PATCH' | 'DELETE'
+  file: string
+  path: (c: Ctx) => string
+  body?: (c: Ctx) => unknown
+  /** null: any signed-in user, no team involved. */
+  permission: Permission | null
+}
+
+const ROUTES: Route[] = [
+  { method: 'GET', file: 'me.get.ts', path: () => '/api/me', permission: null },
+  { method: 'GET', file: 'teams/index.get.ts', path: () => '/api/teams', permission: null },
+  { method: 'GET', file: 'teams/[teamId]/index.get.ts', path: (c) => `/api/teams/${c.teamId}`, permission: 'view' },
+  { method: 'GET', file: 'teams/[teamId]/members/index.get.ts', path: (c) => `/api/teams/${c.teamId}/members`, permission: 'view' },
+  { method: 'PATCH', file: 'teams/[teamId]/members/[userId].patch.ts', path: (c) => `/api/teams/${c.teamId}/members/${c.spareUserId}`, body: () => ({ role: 'reviewer' }), permission: 'manageTeam' },
+  { method: 'DELETE', file: 'teams/[teamId]/members/[userId].delete.ts', path: (c) => `/api/teams/${c.teamId}/members/${c.spareUserId}`, permission: 'manageTeam' },
+  { method: 'GET', file: 'teams/[teamId]/invitations/index.get.ts', path: (c) => `/api/teams/${c.teamId}/invitations`, permission: 'manageTeam' },
+  { method: 'POST', file: 'teams/[teamId]/invitations/index.post.ts', path: (c) => `/api/teams/${c.teamId}/invitations`, body: () => ({ email: `matrix-${uid()}@test.example`, role: 'editor' }), permission: 'manageTeam' },
+  { method: 'DELETE', file: 'teams/[teamId]/invitations/[id].delete.ts', path: (c) => `/api/teams/${c.teamId}/invitations/${c.invitationId}`, permission: 'manageTeam' },
+  { method: 'GET', file: 'teams/[teamId]/productions/index.get.ts', path: (c) => `/api/teams/${c.teamId}/productions`, permission: 'view' },
+  { method: 'POST', file: 'teams/[teamId]/productions/index.post.ts', path: (c) => `/api/teams/${c.teamId}/productions`, body: () => ({ name: `Matrix ${uid()}`, client: '' }), permission: 'createProduction' },
+  { method: 'GET', file: 'productions/[id].get.ts', path: (c) => `/api/productions/${c.productionId}`, permission: 'view' },
+]
+
+/** Routes that need no session: the token or the credentials are the proof. */
+const PUBLIC = [
+  'auth/login.post.ts', 'auth/logout.post.ts', 'auth/password-reset/request.post.ts', 'auth/password-reset/confirm.post.ts',
+  'invitations/[token].get.ts', 'invitations/accept.post.ts',
+]
+
+function routeFiles(dir: string, root = dir): string[] {
+  return readdirSync(dir).flatMap((e) => {
+    const p = join(dir, e)
+    return statSync(p).isDirectory() ? routeFiles(p, root) : [relative(root, p)]
+  })
+}
+
+let team: Awaited<ReturnType<typeof createTeamWithRoles>>
+let outsider: Awaited<ReturnType<typeof createUser>>
+const clients = new Map<Role | 'outsider', Client>()
+
+beforeAll(async () => {
+  team = await createTeamWithRoles()
+  const other = await createTeamWithRoles()
+  outsider = other.users.owner
+  for (const role of ROLES) clients.set(role, await new Client().login(team.users[role].email, team.users[role].password))
+  clients.set('outsider', await new Client().login(outsider.email, outsider.password))
+})
+afterAll(closeDb)
+
+/** Fresh targets for each call, so that a DELETE in one case cannot starve the next. */
+async function freshCtx(): Promise<Ctx> {
+  const spare = await createUser('spare')
+  await addMember(team.teamId, spare.id, 'editor')
+  const [{ id: invitationId }] = await db().insert(t.invitations).values({
+    teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
+  }).$returningId()
+  return { teamId: team.teamId, productionId: team.productionId ?? await createProduction(team.teamId), spareUserId: spare.id, invitationId }
+}
+
+async function call(client: Client, r: Route, c: Ctx) {
+  return client.request(r.method, r.path(c), r.body?.(c))
+}
+
+describe('access matrix', () => {
+  it('lists every route file under server/api', () => {
+    const files = routeFiles(join(process.cwd(), 'server/api')).sort()
+    expect(files).toEqual([...ROUTES.map((r) => r.file), ...PUBLIC].sort())
+  })
+
+  for (const r of ROUTES) {
+    describe(`${r.method} ${r.file}`, () => {
+      it('answers 401 without a session', async () => {
+        expect((await call(new Client(), r, await freshCtx())).status).toBe(401)
+      })
+
+      for (const role of ROLES) {
+        const allowed = r.permission === null || (CAN[r.permission] as readonly Role[]).includes(role)
+        it(`${role}: ${allowed ? 'allowed' : '403'}`, async () => {
+          const res = await call(clients.get(role)!, r, await freshCtx())
+          if (allowed) expect(res.status, JSON.stringify(res.body)).toBeLessThan(300)
+          else expect(res.status).toBe(403)
+        })
+      }
+
+      if (r.permission !== null) {
+        it('a member of another team gets 404 and sees nothing', async () => {
+          const res = await call(clients.get('outsider')!, r, await freshCtx())
+          expect(res.status).toBe(404)
+          expect(JSON.stringify(res.body)).not.toContain(String(team.users.owner.email))
+        })
+      }
+    })
+  }
+
+  it('a team-less route shows only the caller\'s own teams', async () => {
+    const res = await clients.get('outsider')!.get('/api/teams')
+    expect(res.body.map((x: { id: number }) => x.id)).not.toContain(team.teamId)
+  })
+})

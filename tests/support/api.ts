@@ -1,0 +1,50 @@
+import { APP_URL } from './env'
+
+export interface ApiResponse<T = any> {
+  status: number
+  body: T
+  headers: Headers
+}
+
+/** A tiny HTTP client with its own cookie jar: one instance is one signed-in browser. */
+export class Client {
+  private cookies = new Map<string, string>()
+
+  async request<T = any>(method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<ApiResponse<T>> {
+    const res = await fetch(new URL(path, APP_URL()), {
+      method,
+      headers: {
+        ...(body !== undefined ? { 'content-type': 'application/json' } : {}),
+        ...(this.cookies.size ? { cookie: [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ') } : {}),
+        ...headers,
+      },
+      body: body !== undefined ? JSON.stringify(body) : undefined,
+      redirect: 'manual',
+    })
+    for (const c of res.headers.getSetCookie()) {
+      const [pair] = c.split(';')
+      const i = pair!.indexOf('=')
+      const k = pair!.slice(0, i)
+      const v = pair!.slice(i + 1)
+      if (v === '' || /max-age=0|expires=thu, 01 jan 1970/i.test(c)) this.cookies.delete(k)
+      else this.cookies.set(k, v)
+    }
+    const text = await res.text()
+    let parsed: unknown = text
+    try { parsed = text ? JSON.parse(text) : null } catch { /* not JSON */ }
+    return { status: res.status, body: parsed as T, headers: res.headers }
+  }
+
+  get<T = any>(path: string) { return this.request<T>('GET', path) }
+  post<T = any>(path: string, body?: unknown) { return this.request<T>('POST', path, body ?? {}) }
+  patch<T = any>(path: string, body?: unknown) { return this.request<T>('PATCH', path, body ?? {}) }
+  delete<T = any>(path: string) { return this.request<T>('DELETE', path) }
+
+  async login(email: string, password: string) {
+    const r = await this.post('/api/auth/login', { email, password })
+    if (r.status !== 200) throw new Error(`sign-in as ${email} failed: ${r.status} ${JSON.stringify(r.body)}`)
+    return this
+  }
+}
+
+export const signedIn = (email: string, password: string) => new Client().login(email, password)
