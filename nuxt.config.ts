@@ -28,7 +28,8 @@ export default defineNuxtConfig({
     session: {
       name: 'linewise-session',
       maxAge: 60 * 60 * 24 * 7,
-      cookie: { sameSite: 'lax', httpOnly: true },
+      // Secure unless NUXT_SESSION_COOKIE_SECURE=false (the local stack on plain http sets that).
+      cookie: { sameSite: 'lax', httpOnly: true, secure: true },
     },
     public: {
       appUrl: 'http://127.0.0.1:3000',

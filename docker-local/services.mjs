@@ -59,6 +59,8 @@ export function serviceEnv(p) {
     NUXT_SMTP_URL: `smtp://127.0.0.1:${p.ports.smtp}`,
     NUXT_MAIL_FROM: 'Linewise <no-reply@linewise.local>',
     NUXT_PUBLIC_APP_URL: `http://127.0.0.1:${p.ports.app}`,
+    // Served over plain http on loopback: a Secure cookie would not be sent back by every browser.
+    NUXT_SESSION_COOKIE_SECURE: 'false',
     LW_MAIL_UI_URL: `http://127.0.0.1:${p.ports.mailUi}`,
   }
 }
