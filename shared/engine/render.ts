@@ -204,9 +204,6 @@ export function renderHistogram(h: Histograms, opts: { height?: number } = {}): 
     for (let x = 0; x < width; x++) m = Math.max(m, col(d, x))
     return m
   }
-  // Studio black and white on the histogram's code axis.
-  const k = h.bins / 256
-  for (const code of [16 * k, 235 * k]) cv.vline(Math.round(code * width / h.bins), 0, height, PALETTE.keyLine)
   const py = peak(h.y)
   for (let x = 0; x < width; x++) {
     const top = Math.round((col(h.y, x) / py) * (height - 1))
@@ -216,6 +213,9 @@ export function renderHistogram(h: Histograms, opts: { height?: number } = {}): 
     const p = peak(d)
     for (let x = 0; x < width; x++) cv.set(x, height - 1 - Math.round((col(d, x) / p) * (height - 1)), c)
   }
+  // Studio black and white on the histogram's code axis, drawn over the bars.
+  const k = h.bins / 256
+  for (const code of [16 * k, 235 * k]) cv.vline(Math.round(code * width / h.bins), 0, height, PALETTE.keyLine)
   return cv.image()
 }
 
@@ -264,7 +264,8 @@ export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: 
         out[o] = mark[0]; out[o + 1] = mark[1]; out[o + 2] = mark[2]
       }
       else {
-        out[o] = r * 255 + 0.5; out[o + 1] = g * 255 + 0.5; out[o + 2] = b * 255 + 0.5
+        // Uint8ClampedArray rounds and clips on store.
+        out[o] = r * 255; out[o + 1] = g * 255; out[o + 2] = b * 255
       }
       out[o + 3] = 255
     }

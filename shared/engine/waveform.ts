@@ -31,6 +31,9 @@ export function newWaveformAccumulator(width: number): WaveformAccumulator {
   // row = (code8 − code8(bottom)) · rows / code8 span, so one multiply-add per trace.
   const c0 = ireToCode8(WAVEFORM_IRE_BOTTOM)
   const perCode = rows / (ireToCode8(WAVEFORM_IRE_TOP) - c0)
+  // A level exactly on a row boundary (7.5 or 100 IRE) must land in the row it names, not
+  // one below through rounding of the IRE-to-code factors.
+  const c0e = c0 - 1e-9
   const last = rows - 1
   const colOf = new Int32Array(width)
   for (let x = 0; x < width; x++) colOf[x] = Math.floor(x / decimation)
@@ -42,12 +45,12 @@ export function newWaveformAccumulator(width: number): WaveformAccumulator {
         const y = Y[x]!
         const u = uK * PB[x]!; const v = vK * PR[x]!
         const c = 219 * Math.sqrt(u * u + v * v)
-        let k = Math.floor((y - c0) * perCode); luma[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
-        k = Math.floor((y + c - c0) * perCode); flat[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
-        k = Math.floor((y - c - c0) * perCode); flat[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
-        k = Math.floor((16 + 219 * R[x]! - c0) * perCode); rr[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
-        k = Math.floor((16 + 219 * G[x]! - c0) * perCode); gg[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
-        k = Math.floor((16 + 219 * B[x]! - c0) * perCode); bb[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
+        let k = Math.floor((y - c0e) * perCode); luma[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
+        k = Math.floor((y + c - c0e) * perCode); flat[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
+        k = Math.floor((y - c - c0e) * perCode); flat[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
+        k = Math.floor((16 + 219 * R[x]! - c0e) * perCode); rr[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
+        k = Math.floor((16 + 219 * G[x]! - c0e) * perCode); gg[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
+        k = Math.floor((16 + 219 * B[x]! - c0e) * perCode); bb[(k < 0 ? 0 : k > last ? last : k) * columns + col]!++
       }
     },
     result: () => ({
