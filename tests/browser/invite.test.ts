@@ -1,0 +1,148 @@
+// The owner invites a new QC reviewer from the team page; the invited person opens the link
+// from the e-mail in a browser of their own, creates an account and lands in the team's
+// productions. Screens are saved to test-results/screens/ for a person to look at.
+import { randomBytes } from 'node:crypto'
+import type { Browser, BrowserContext, Page } from 'playwright-core'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/db/demo'
+import { launchBrowser, screen } from '../support/browser'
+import { APP_URL } from '../support/env'
+import { linkIn, waitForMail } from '../support/mail'
+
+const owner = DEMO_USERS.find((u) => u.role === 'owner')!
+const invitee = { email: `new-reviewer-${randomBytes(4).toString('hex')}@test.example`, name: 'Ada Okafor', password: 'marsh-levels-2041' }
+
+let browser: Browser
+let ownerCtx: BrowserContext
+let inviteeCtx: BrowserContext
+let ownerPage: Page
+let inviteePage: Page
+let invitationUrl = ''
+
+const url = (path: string) => `${APP_URL()}${path}`
+const VIEWPORT = { width: 1280, height: 800 }
+
+beforeAll(async () => {
+  browser = await launchBrowser()
+  ownerCtx = await browser.newContext({ viewport: VIEWPORT })
+  inviteeCtx = await browser.newContext({ viewport: VIEWPORT })
+  ownerPage = await ownerCtx.newPage()
+  inviteePage = await inviteeCtx.newPage()
+})
+
+afterAll(async () => {
+  await browser?.close()
+})
+
+describe('inviting a reviewer', () => {
+  it('sends a signed-out visitor to sign in, and says when the password is wrong', async () => {
+    await ownerPage.goto(url('/team'))
+    await ownerPage.waitForURL((u) => u.pathname === '/login')
+    expect(new URL(ownerPage.url()).searchParams.get('redirect')).toBe('/team')
+    await screen(ownerPage, '01-sign-in')
+
+    await ownerPage.getByTestId('login-email').fill(owner.email)
+    await ownerPage.getByTestId('login-password').fill('not-the-password')
+    await ownerPage.getByTestId('login-submit').click()
+    await expect.poll(() => ownerPage.getByTestId('login-error').textContent()).toBe('E-mail or password is wrong')
+    await screen(ownerPage, '02-sign-in-wrong-password')
+  })
+
+  it('lets the owner sign in and lands on the page asked for', async () => {
+    await ownerPage.getByTestId('login-password').fill(owner.password)
+    await ownerPage.getByTestId('login-submit').click()
+    await ownerPage.waitForURL((u) => u.pathname === '/team')
+    await expect.poll(() => ownerPage.getByTestId('signed-in-user').innerText()).toMatch(new RegExp(`${owner.name}\\s+Owner`))
+    await ownerPage.getByTestId('member-row').first().waitFor()
+    const emails = await ownerPage.getByTestId('member-row').evaluateAll((rows) => rows.map((r) => r.getAttribute('data-email')))
+    expect(emails).toEqual(expect.arrayContaining(DEMO_USERS.map((u) => u.email)))
+    await screen(ownerPage, '03-team-as-owner')
+  })
+
+  it('refuses a malformed address before sending anything', async () => {
+    await ownerPage.getByTestId('invite-email').fill('not-an-address')
+    await ownerPage.getByTestId('invite-submit').click()
+    await expect.poll(() => ownerPage.getByTestId('invite-form').innerText()).toContain('Enter a valid e-mail address')
+  })
+
+  it('sends the invitation and lists it as open', async () => {
+    await ownerPage.getByTestId('invite-email').fill(invitee.email)
+    await ownerPage.getByTestId('invite-role').selectOption('reviewer')
+    await ownerPage.getByTestId('invite-submit').click()
+    await expect.poll(() => ownerPage.getByTestId('invite-sent').textContent()).toBe(`Invitation sent to ${invitee.email} as QC reviewer.`)
+    const row = ownerPage.locator(`[data-testid="invitation-row"][data-email="${invitee.email}"]`)
+    await row.waitFor()
+    expect(await row.innerText()).toContain('QC reviewer')
+    await screen(ownerPage, '04-team-invitation-sent')
+
+    // Inviting the same person again while they are a member is refused; while only invited, it is allowed,
+    // so the conflict case is exercised with an existing member.
+    await ownerPage.getByTestId('invite-email').fill(DEMO_USERS[1]!.email)
+    await ownerPage.getByTestId('invite-submit').click()
+    await expect.poll(() => ownerPage.getByTestId('invite-error').textContent()).toBe(`${DEMO_USERS[1]!.email} is already a member of this team`)
+  })
+
+  it('mails a link that opens the invitation', async () => {
+    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM}`))
+    invitationUrl = linkIn(mail, '/invitations/')
+    expect(invitationUrl.startsWith(`${APP_URL()}/invitations/`)).toBe(true)
+
+    await inviteePage.goto(invitationUrl)
+    await inviteePage.getByTestId('invitation-form').waitFor()
+    expect(await inviteePage.getByTestId('invitation-team').textContent()).toBe(DEMO_TEAM)
+    expect(await inviteePage.getByTestId('invitation-email').textContent()).toBe(invitee.email)
+    expect(await inviteePage.getByTestId('invitation-role').textContent()).toBe('QC reviewer')
+    await screen(inviteePage, '05-invitation')
+  })
+
+  it('asks for matching passwords, then creates the account and shows the team’s productions', async () => {
+    await inviteePage.getByTestId('invitation-name').fill(invitee.name)
+    await inviteePage.getByTestId('invitation-password').fill(invitee.password)
+    await inviteePage.getByTestId('invitation-password-confirm').fill(`${invitee.password}x`)
+    await inviteePage.getByTestId('invitation-submit').click()
+    await expect.poll(() => inviteePage.getByTestId('invitation-form').innerText()).toContain('The two passwords differ')
+    await screen(inviteePage, '06-invitation-passwords-differ')
+
+    await inviteePage.getByTestId('invitation-password-confirm').fill(invitee.password)
+    await inviteePage.getByTestId('invitation-submit').click()
+    await inviteePage.waitForURL((u) => u.pathname === '/')
+    const row = inviteePage.getByTestId('production-row').filter({ hasText: DEMO_PRODUCTION.name })
+    await row.waitFor()
+    expect(await row.innerText()).toContain(DEMO_PRODUCTION.client)
+    await expect.poll(() => inviteePage.getByTestId('signed-in-user').innerText()).toMatch(new RegExp(`${invitee.name}\\s+QC reviewer`))
+    // A reviewer may create productions (CAN.createProduction).
+    expect(await inviteePage.getByTestId('new-production-open').count()).toBe(1)
+    await screen(inviteePage, '07-productions-as-new-reviewer')
+  })
+
+  it('opens the production and shows its (still empty) reels', async () => {
+    await inviteePage.getByTestId('production-row').filter({ hasText: DEMO_PRODUCTION.name }).getByTestId('production-link').click()
+    await inviteePage.waitForURL((u) => /^\/productions\/\d+$/.test(u.pathname))
+    await inviteePage.getByRole('heading', { level: 1, name: DEMO_PRODUCTION.name }).waitFor()
+    await screen(inviteePage, '08-production')
+  })
+
+  it('shows the new member read-only to themselves, and the link cannot be used twice', async () => {
+    await inviteePage.getByTestId('nav-team').click()
+    await inviteePage.waitForURL((u) => u.pathname === '/team')
+    await inviteePage.locator(`[data-testid="member-row"][data-email="${invitee.email}"]`).waitFor()
+    expect(await inviteePage.getByTestId('member-role').count()).toBe(0)
+    expect(await inviteePage.getByTestId('invite-form').count()).toBe(0)
+    expect(await inviteePage.getByTestId('role-description').count()).toBe(4)
+    await screen(inviteePage, '09-team-as-reviewer')
+
+    await inviteePage.goto(invitationUrl)
+    await inviteePage.getByTestId('invitation-problem').waitFor()
+    expect(await inviteePage.getByTestId('invitation-problem').innerText()).toContain('This invitation was already accepted')
+    await screen(inviteePage, '10-invitation-used')
+  })
+
+  it('moves the person from open invitations to members on the owner’s team page', async () => {
+    await ownerPage.reload()
+    const member = ownerPage.locator(`[data-testid="member-row"][data-email="${invitee.email}"]`)
+    await member.waitFor()
+    expect(await member.getByTestId('member-role').inputValue()).toBe('reviewer')
+    expect(await ownerPage.locator(`[data-testid="invitation-row"][data-email="${invitee.email}"]`).count()).toBe(0)
+    await screen(ownerPage, '11-team-after-accept')
+  })
+})
