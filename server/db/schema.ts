@@ -1,8 +1,9 @@
 import { relations, sql } from 'drizzle-orm'
 import {
-  bigint, boolean, char, datetime, index, int, json, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar,
+  bigint, boolean, char, datetime, double, index, int, json, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar,
 } from 'drizzle-orm/mysql-core'
 import { ROLES } from '../../shared/utils/roles'
+import { FRAME_FORMATS, FRAME_STATUSES } from '../../shared/utils/uploads'
 
 // MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
 const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
@@ -87,6 +88,8 @@ export const reels = mysqlTable('reels', {
   sourceLabel: varchar('source_label', { length: 120 }).notNull().default(''),
   sourceRange: mysqlEnum('source_range', ['full', 'studio']).notNull().default('full'),
   matrix: mysqlEnum('matrix', ['601', '709']).notNull().default('601'),
+  /** Next frame index; taken under a row lock so concurrent uploads get distinct indexes. */
+  nextSeq: int('next_seq').notNull().default(1),
   createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
 }, (t) => [index('reels_production_idx').on(t.productionId), index('reels_team_idx').on(t.teamId)])
@@ -115,4 +118,78 @@ export const productionsRelations = relations(productions, ({ one, many }) => ({
 }))
 export const reelsRelations = relations(reels, ({ one }) => ({
   production: one(productions, { fields: [reels.productionId], references: [productions.id] }),
+}))
+
+
+/** A file announced by the browser and given a presigned URL; becomes a frame once confirmed. */
+export const uploads = mysqlTable('uploads', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  reelId: ref('reel_id').notNull().references(() => reels.id, { onDelete: 'cascade' }),
+  userId: ref('user_id').references(() => users.id, { onDelete: 'set null' }),
+  objectKey: varchar('object_key', { length: 255 }).notNull(),
+  name: varchar('name', { length: 255 }).notNull(),
+  bytes: bigint('bytes', { mode: 'number', unsigned: true }).notNull(),
+  format: mysqlEnum('format', FRAME_FORMATS).notNull(),
+  rawWidth: int('raw_width'),
+  rawHeight: int('raw_height'),
+  multipartId: varchar('multipart_id', { length: 255 }),
+  expiresAt: datetime('expires_at', { mode: 'date' }).notNull(),
+  completedAt: datetime('completed_at', { mode: 'date' }),
+  ...timestamps,
+}, (t) => [index('uploads_reel_idx').on(t.reelId)])
+
+export const frames = mysqlTable('frames', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  reelId: ref('reel_id').notNull().references(() => reels.id, { onDelete: 'cascade' }),
+  /** Order within the reel (upload order), shown as the frame's index. */
+  seq: int('seq').notNull(),
+  name: varchar('name', { length: 255 }).notNull(),
+  timecode: varchar('timecode', { length: 16 }),
+  objectKey: varchar('object_key', { length: 255 }).notNull(),
+  sha256: char('sha256', { length: 64 }).notNull(),
+  bytes: bigint('bytes', { mode: 'number', unsigned: true }).notNull(),
+  format: mysqlEnum('format', FRAME_FORMATS).notNull(),
+  width: int('width').notNull(),
+  height: int('height').notNull(),
+  status: mysqlEnum('status', FRAME_STATUSES).notNull().default('queued'),
+  failReason: varchar('fail_reason', { length: 500 }),
+  /** When the frame was last handed to the queue; the sweeper re-queues stale `queued` rows. */
+  queuedAt: datetime('queued_at', { mode: 'date', fsp: 3 }),
+  uploadedBy: ref('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [
+  uniqueIndex('frames_reel_sha_uq').on(t.reelId, t.sha256),
+  uniqueIndex('frames_reel_seq_uq').on(t.reelId, t.seq),
+  index('frames_status_idx').on(t.status, t.queuedAt),
+])
+
+/** One analysis per frame (the unique key makes a second run of the same job a no-op). */
+export const analyses = mysqlTable('analyses', {
+  id: id(),
+  frameId: ref('frame_id').notNull().references(() => frames.id, { onDelete: 'cascade' }),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  engineVersion: varchar('engine_version', { length: 32 }).notNull(),
+  specName: varchar('spec_name', { length: 64 }).notNull(),
+  specVersion: int('spec_version').notNull(),
+  verdict: mysqlEnum('verdict', ['pass', 'caution', 'fail']).notNull(),
+  // Key figures as columns so that the frames table can sort and filter in SQL.
+  lumaMinIre: double('luma_min_ire').notNull(),
+  lumaMaxIre: double('luma_max_ire').notNull(),
+  lumaMeanIre: double('luma_mean_ire').notNull(),
+  compMinIre: double('comp_min_ire').notNull(),
+  compMaxIre: double('comp_max_ire').notNull(),
+  outShare: double('out_share').notNull(),
+  /** The engine's JSON result (same field names as `npm run analyse -- --json`), without pixel data. */
+  result: json('result').notNull(),
+  histograms: json('histograms').notNull(),
+  images: json('images').notNull(),
+  durationMs: int('duration_ms').notNull(),
+  ...timestamps,
+}, (t) => [uniqueIndex('analyses_frame_uq').on(t.frameId), index('analyses_team_idx').on(t.teamId)])
+
+export const framesRelations = relations(frames, ({ one }) => ({
+  reel: one(reels, { fields: [frames.reelId], references: [reels.id] }),
+  analysis: one(analyses, { fields: [frames.id], references: [analyses.frameId] }),
 }))

@@ -5,6 +5,7 @@ import { hashPassword } from './password'
 import { createDb } from './client'
 import * as t from './schema'
 import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from './demo'
+import { copyBuiltinSpecs } from '../lib/specs'
 
 const { db, pool } = createDb(process.env.NUXT_DATABASE_URL ?? '', 2)
 try {
@@ -12,6 +13,11 @@ try {
   if (!team) {
     const [{ id }] = await db.insert(t.teams).values({ name: DEMO_TEAM }).$returningId()
     ;[team] = await db.select().from(t.teams).where(eq(t.teams.id, id))
+  }
+  let [spec] = await db.select().from(t.deliverySpecs).where(eq(t.deliverySpecs.teamId, team!.id)).orderBy(t.deliverySpecs.id).limit(1)
+  if (!spec) {
+    await copyBuiltinSpecs(db, team!.id)
+    ;[spec] = await db.select().from(t.deliverySpecs).where(eq(t.deliverySpecs.teamId, team!.id)).orderBy(t.deliverySpecs.id).limit(1)
   }
   let ownerId = 0
   for (const u of DEMO_USERS) {
@@ -26,7 +32,7 @@ try {
   const [prod] = await db.select().from(t.productions)
     .where(and(eq(t.productions.teamId, team!.id), eq(t.productions.name, DEMO_PRODUCTION.name))).limit(1)
   if (!prod) {
-    await db.insert(t.productions).values({ ...DEMO_PRODUCTION, teamId: team!.id, createdBy: ownerId })
+    await db.insert(t.productions).values({ ...DEMO_PRODUCTION, teamId: team!.id, createdBy: ownerId, deliverySpecId: spec!.id })
   }
   console.log(`[seed] demo team "${DEMO_TEAM}" ready`)
 } finally {

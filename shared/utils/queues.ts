@@ -15,3 +15,12 @@ export const DEFAULT_JOB_OPTIONS = {
   removeOnComplete: { age: 24 * 3600, count: 1000 },
   removeOnFail: { age: 7 * 24 * 3600 },
 } as const
+
+export const QUEUE_ANALYSE = 'analyse'
+
+export interface AnalyseJob {
+  frameId: number
+}
+
+/** One job id per frame: adding it twice while it waits is a no-op in BullMQ. */
+export const analyseJobId = (frameId: number) => `frame-${frameId}`

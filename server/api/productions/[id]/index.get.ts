@@ -1,5 +1,5 @@
 import { asc, eq } from 'drizzle-orm'
-import { IdParams } from '../../../shared/utils/validation'
+import { IdParams } from '../../../../shared/utils/validation'
 
 export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, IdParams.parse)

@@ -1,3 +1,4 @@
+import { asc, eq } from 'drizzle-orm'
 import { ProductionBody, TeamParams } from '../../../../../shared/utils/validation'
 
 export default defineEventHandler(async (event) => {
@@ -5,7 +6,10 @@ export default defineEventHandler(async (event) => {
   const { user } = await requireTeamRole(event, teamId, 'createProduction')
   const body = await readValidatedBody(event, ProductionBody.parse)
   const id = await useDb().transaction(async (tx) => {
-    const [{ id }] = await tx.insert(tables.productions).values({ ...body, teamId, createdBy: user.id }).$returningId()
+    // A new production is measured against the team's first spec until an owner picks another.
+    const [spec] = await tx.select({ id: tables.deliverySpecs.id }).from(tables.deliverySpecs)
+      .where(eq(tables.deliverySpecs.teamId, teamId)).orderBy(asc(tables.deliverySpecs.id)).limit(1)
+    const [{ id }] = await tx.insert(tables.productions).values({ ...body, teamId, createdBy: user.id, deliverySpecId: spec?.id ?? null }).$returningId()
     await audit({ teamId, actorId: user.id, action: 'production.created', subjectType: 'production', subjectId: id, details: body }, tx)
     return id
   })

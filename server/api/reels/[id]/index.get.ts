@@ -1,0 +1,30 @@
+import { eq, sql } from 'drizzle-orm'
+import { IdParams } from '../../../../shared/utils/validation'
+import { specForProduction } from '../../../lib/specs'
+
+/** The reel with its production, the spec it is measured against and counts by status and verdict. */
+export default defineEventHandler(async (event) => {
+  const { id } = await getValidatedRouterParams(event, IdParams.parse)
+  const { reel, role } = await requireReel(event, id, 'view')
+  const db = useDb()
+  const [production] = await db.select({ id: tables.productions.id, name: tables.productions.name }).from(tables.productions).where(eq(tables.productions.id, reel.productionId))
+  const [counts] = await db.select({
+    total: sql<number>`count(*)`,
+    queued: sql<number>`coalesce(sum(${tables.frames.status} = 'queued'), 0)`,
+    analysing: sql<number>`coalesce(sum(${tables.frames.status} = 'analysing'), 0)`,
+    done: sql<number>`coalesce(sum(${tables.frames.status} = 'done'), 0)`,
+    failed: sql<number>`coalesce(sum(${tables.frames.status} = 'failed'), 0)`,
+    pass: sql<number>`coalesce(sum(${tables.analyses.verdict} = 'pass'), 0)`,
+    caution: sql<number>`coalesce(sum(${tables.analyses.verdict} = 'caution'), 0)`,
+    fail: sql<number>`coalesce(sum(${tables.analyses.verdict} = 'fail'), 0)`,
+  }).from(tables.frames).leftJoin(tables.analyses, eq(tables.analyses.frameId, tables.frames.id)).where(eq(tables.frames.reelId, reel.id))
+  const { spec, version } = await specForProduction(db, reel.productionId)
+  const n = (v: unknown) => Number(v ?? 0)
+  return {
+    ...reel,
+    role,
+    production,
+    spec: { name: spec.name, title: spec.title, version },
+    counts: Object.fromEntries(Object.entries(counts ?? {}).map(([k, v]) => [k, n(v)])),
+  }
+})

@@ -1,0 +1,70 @@
+// Turning a checked object into a frame: one transaction that either creates the frame
+// (status `queued`, the outbox the worker's sweeper also reads) or finds the same content
+// already in the reel.
+import { createHash } from 'node:crypto'
+import { and, eq, sql } from 'drizzle-orm'
+import type { Queue } from 'bullmq'
+import type { Db } from '../db/client'
+import * as t from '../db/schema'
+import { analyseJobId, type AnalyseJob } from '../../shared/utils/queues'
+import type { Inspected } from './intake'
+import { keys, type Storage } from './storage'
+
+export const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex')
+
+export interface NewFrame {
+  teamId: number
+  reelId: number
+  name: string
+  bytes: Uint8Array
+  inspected: Inspected
+  uploadedBy: number | null
+  /** Already in S3 (a presigned upload): used as it is instead of storing a copy. */
+  storedAt?: string
+}
+
+export type FrameRow = typeof t.frames.$inferSelect
+
+/**
+ * Stores the original under a content-addressed key and creates the frame. Returns the
+ * existing frame (duplicate: true) when the same bytes are already in this reel.
+ */
+export async function createFrame(db: Db, storage: Storage, f: NewFrame): Promise<{ frame: FrameRow; duplicate: boolean }> {
+  const hash = sha256(f.bytes)
+  const [existing] = await db.select().from(t.frames).where(and(eq(t.frames.reelId, f.reelId), eq(t.frames.sha256, hash))).limit(1)
+  if (existing) return { frame: existing, duplicate: true }
+  const objectKey = f.storedAt ?? keys.original(f.teamId, f.reelId, hash)
+  // The object goes first: a frame row never points at bytes that are not there.
+  if (!f.storedAt) await storage.put(objectKey, f.bytes, contentTypeOf(f.inspected.format))
+  return db.transaction(async (tx) => {
+    const [reel] = await tx.select({ nextSeq: t.reels.nextSeq }).from(t.reels).where(eq(t.reels.id, f.reelId)).for('update')
+    if (!reel) throw new Error('reel vanished during upload')
+    const [again] = await tx.select().from(t.frames).where(and(eq(t.frames.reelId, f.reelId), eq(t.frames.sha256, hash))).limit(1)
+    if (again) return { frame: again, duplicate: true }
+    await tx.update(t.reels).set({ nextSeq: sql`${t.reels.nextSeq} + 1` }).where(eq(t.reels.id, f.reelId))
+    const [{ id }] = await tx.insert(t.frames).values({
+      teamId: f.teamId, reelId: f.reelId, seq: reel.nextSeq, name: f.name, objectKey, sha256: hash, bytes: f.bytes.length,
+      format: f.inspected.format, width: f.inspected.width, height: f.inspected.height, status: 'queued', queuedAt: new Date(), uploadedBy: f.uploadedBy,
+    }).$returningId()
+    const [frame] = await tx.select().from(t.frames).where(eq(t.frames.id, id))
+    return { frame: frame!, duplicate: false }
+  })
+}
+
+/**
+ * Hands a frame to the queue. If Redis is down the frame stays `queued` in MariaDB and the
+ * worker's sweeper queues it when Redis is back: it is never lost, only late.
+ */
+export async function queueFrame(queue: Queue<AnalyseJob>, frameId: number): Promise<boolean> {
+  try {
+    await queue.add('analyse', { frameId }, { jobId: analyseJobId(frameId) })
+    return true
+  } catch (e) {
+    console.error(`[queue] frame ${frameId} not queued yet: ${(e as Error).message}`)
+    return false
+  }
+}
+
+export function contentTypeOf(format: string) {
+  return ({ png: 'image/png', jpeg: 'image/jpeg', tiff: 'image/tiff', webp: 'image/webp' } as Record<string, string>)[format] ?? 'application/octet-stream'
+}

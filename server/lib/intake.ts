@@ -1,0 +1,91 @@
+// What an upload must be before it becomes a frame. Plain functions shared by the presigned
+// flow, the multipart API and their tests: the same file is refused for the same reason
+// whichever way it came in.
+import sharp from 'sharp'
+import { v210Stride } from '../../shared/engine/decode'
+import { UPLOAD_LIMITS, type FrameFormat } from '../../shared/utils/uploads'
+
+/** A refused upload: `status` for HTTP, `reason` for the person who sent it. */
+export class IntakeError extends Error {
+  constructor(public status: number, public reason: string) {
+    super(reason)
+    this.name = 'IntakeError'
+  }
+}
+
+/** Refuses names that try to steer a path or hide characters; the name is only ever a label. */
+export function checkFileName(name: string): string {
+  if (name.length === 0) throw new IntakeError(400, 'The file has no name')
+  if (name.includes('\0')) throw new IntakeError(400, 'The file name contains a NUL character')
+  // eslint-disable-next-line no-control-regex
+  if (/[\u0000-\u001f\u007f]/.test(name)) throw new IntakeError(400, 'The file name contains control characters')
+  if (/[/\\]/.test(name) || name === '.' || name === '..') throw new IntakeError(400, `The file name "${name.slice(0, 80)}" contains a path; send the file name only`)
+  if ([...name].length > 200) throw new IntakeError(400, 'The file name is longer than 200 characters')
+  return name.normalize('NFC')
+}
+
+const MAGIC: [FrameFormat, (b: Uint8Array) => boolean][] = [
+  ['png', (b) => b[0] === 0x89 && b[1] === 0x50 && b[2] === 0x4e && b[3] === 0x47 && b[4] === 0x0d && b[5] === 0x0a && b[6] === 0x1a && b[7] === 0x0a],
+  ['jpeg', (b) => b[0] === 0xff && b[1] === 0xd8 && b[2] === 0xff],
+  ['tiff', (b) => (b[0] === 0x49 && b[1] === 0x49 && b[2] === 0x2a && b[3] === 0x00) || (b[0] === 0x4d && b[1] === 0x4d && b[2] === 0x00 && b[3] === 0x2a)],
+  ['webp', (b) => b[0] === 0x52 && b[1] === 0x49 && b[2] === 0x46 && b[3] === 0x46 && b[8] === 0x57 && b[9] === 0x45 && b[10] === 0x42 && b[11] === 0x50],
+]
+
+/** Names what a refused file looks like, so the reason says more than "unsupported". */
+function describeOther(b: Uint8Array): string {
+  const text = new TextDecoder('utf-8', { fatal: false }).decode(b.subarray(0, 512)).trimStart().toLowerCase()
+  if (b[0] === 0x50 && b[1] === 0x4b && (b[2] === 0x03 || b[2] === 0x05)) return 'a ZIP archive'
+  if (b[0] === 0x1f && b[1] === 0x8b) return 'a gzip archive'
+  if (text.startsWith('%pdf')) return 'a PDF document'
+  if (text.includes('<svg')) return 'an SVG drawing'
+  if (text.startsWith('<!doctype html') || text.startsWith('<html') || text.includes('<script')) return 'an HTML document'
+  if (b[0] === 0x47 && b[1] === 0x49 && b[2] === 0x46) return 'a GIF picture'
+  if (text.length && /^[\t\n\r\x20-\x7e]*$/.test(text.slice(0, 256))) return 'a text file'
+  return 'not a PNG, TIFF, JPEG or WebP picture'
+}
+
+export function sniffFormat(head: Uint8Array): FrameFormat | null {
+  return MAGIC.find(([, test]) => test(head))?.[0] ?? null
+}
+
+export interface Inspected {
+  format: FrameFormat
+  width: number
+  height: number
+}
+
+/**
+ * Checks a stored object: size, type from its bytes (never from its name), and dimensions
+ * from its header, before anything decodes its pixels.
+ */
+export async function inspectUpload(bytes: Uint8Array, declared: { format: FrameFormat; rawWidth?: number | null; rawHeight?: number | null }): Promise<Inspected> {
+  if (bytes.length === 0) throw new IntakeError(422, 'The file is empty')
+  if (bytes.length > UPLOAD_LIMITS.maxBytes) throw new IntakeError(413, `The file is larger than ${UPLOAD_LIMITS.maxBytes / 2 ** 20} MiB`)
+  if (declared.format === 'uyvy' || declared.format === 'v210') {
+    const w = declared.rawWidth ?? 0
+    const h = declared.rawHeight ?? 0
+    if (!w || !h) throw new IntakeError(422, 'Raw Y\'CbCr needs its width and height')
+    if (w * h > UPLOAD_LIMITS.maxPixels) throw new IntakeError(422, `${w}×${h} is more than the ${UPLOAD_LIMITS.maxPixels / 1e6} megapixel limit`)
+    const expected = declared.format === 'uyvy' ? w * h * 2 : v210Stride(w) * h
+    if (bytes.length !== expected) {
+      throw new IntakeError(422, `Raw ${declared.format} at ${w}×${h} should be ${expected} bytes; this file has ${bytes.length}. Check the width, height and format.`)
+    }
+    const found = sniffFormat(bytes)
+    if (found) throw new IntakeError(422, `This is a ${found.toUpperCase()} picture, not raw ${declared.format}`)
+    return { format: declared.format, width: w, height: h }
+  }
+  const format = sniffFormat(bytes)
+  if (!format) throw new IntakeError(415, `Unsupported file: this is ${describeOther(bytes)}. Linewise reads PNG, TIFF, JPEG and WebP stills, and raw UYVY or v210.`)
+  let meta: sharp.Metadata
+  try {
+    // Header only: limitInputPixels refuses a decompression bomb before any pixel is decoded.
+    meta = await sharp(bytes, { limitInputPixels: false }).metadata()
+  } catch (e) {
+    throw new IntakeError(422, `The ${format.toUpperCase()} file cannot be read: ${(e as Error).message.replace(/^Input buffer /, '')}`)
+  }
+  if (!meta.width || !meta.height) throw new IntakeError(422, `The ${format.toUpperCase()} file has no picture size`)
+  if (meta.width * meta.height > UPLOAD_LIMITS.maxPixels) {
+    throw new IntakeError(422, `The picture is ${meta.width}×${meta.height}, more than the ${UPLOAD_LIMITS.maxPixels / 1e6} megapixel limit`)
+  }
+  return { format, width: meta.width, height: meta.height }
+}

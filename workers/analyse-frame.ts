@@ -1,0 +1,122 @@
+// The analysis job: a plain function (tested by calling it with a fake job) that the
+// entry point wires to a BullMQ worker. Idempotent: a second run of the same job finds the
+// analysis row and writes nothing new.
+import { and, eq, ne } from 'drizzle-orm'
+import { UnrecoverableError } from 'bullmq'
+import sharp from 'sharp'
+import { ENGINE_VERSION, analyseFrame, renderRangeOverlay, renderVectorscope, renderWaveform } from '../shared/engine'
+import type { FrameInput, RgbaImage } from '../shared/engine/types'
+import type { AnalyseJob } from '../shared/utils/queues'
+import { analysisJson } from '../shared/utils/report'
+import type { Db } from '../server/db/client'
+import * as t from '../server/db/schema'
+import { specForProduction } from '../server/lib/specs'
+import { keys, type Storage } from '../server/lib/storage'
+import { DecodeFileError, decodeBytes } from './lib/decode-file'
+import { renderPicture } from './lib/preview'
+import { UPLOAD_LIMITS } from '../shared/utils/uploads'
+
+export interface AnalyseDeps {
+  db: Db
+  storage: Storage
+}
+
+export interface JobLike {
+  data: AnalyseJob
+  attemptsMade: number
+  opts: { attempts?: number }
+}
+
+/** Images written per frame; the API serves them as /api/frames/:id/images/:kind. */
+export const IMAGE_KINDS = ['thumb', 'overlay', 'waveform-luma', 'waveform-flat', 'waveform-rgb', 'vectorscope'] as const
+export type ImageKind = (typeof IMAGE_KINDS)[number]
+
+const THUMB_WIDTH = 320
+const OVERLAY_WIDTH = 1280
+
+async function png(img: RgbaImage, maxWidth?: number) {
+  let s = sharp(Buffer.from(img.data.buffer, img.data.byteOffset, img.data.byteLength), { raw: { width: img.width, height: img.height, channels: 4 } })
+  if (maxWidth && img.width > maxWidth) s = s.resize({ width: maxWidth })
+  // Low zlib effort: scope images are small, and the worker's time goes to throughput.
+  return new Uint8Array(await s.png({ compressionLevel: 2 }).toBuffer())
+}
+
+async function thumbnail(bytes: Uint8Array, input: FrameInput, isRaw: boolean, matrix: '601' | '709') {
+  if (isRaw) return png(renderPicture(input, matrix, THUMB_WIDTH * 2), THUMB_WIDTH)
+  const out = await sharp(bytes, { limitInputPixels: UPLOAD_LIMITS.maxPixels }).resize({ width: THUMB_WIDTH, withoutEnlargement: true })
+    .jpeg({ quality: 80 }).toBuffer()
+  return new Uint8Array(out)
+}
+
+/** What the person sees when a frame fails: short, about their file, never a stack trace. */
+function failReason(e: unknown) {
+  const msg = (e as Error).message ?? String(e)
+  if (e instanceof DecodeFileError) return `The file cannot be decoded: ${msg}`
+  return msg.slice(0, 480)
+}
+
+export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{ status: 'done' | 'skipped' }> {
+  const { db, storage } = deps
+  const { frameId } = job.data
+  const [row] = await db.select({ frame: t.frames, reel: t.reels }).from(t.frames)
+    .innerJoin(t.reels, eq(t.reels.id, t.frames.reelId)).where(eq(t.frames.id, frameId)).limit(1)
+  if (!row) return { status: 'skipped' } // deleted since it was queued
+  const { frame, reel } = row
+  const [done] = await db.select({ id: t.analyses.id }).from(t.analyses).where(eq(t.analyses.frameId, frameId)).limit(1)
+  if (done) {
+    await db.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
+    return { status: 'skipped' }
+  }
+  await db.update(t.frames).set({ status: 'analysing' }).where(and(eq(t.frames.id, frameId), ne(t.frames.status, 'done')))
+
+  const started = performance.now()
+  try {
+    const bytes = await storage.get(frame.objectKey)
+    const isRaw = frame.format === 'uyvy' || frame.format === 'v210'
+    const input = await decodeBytes(bytes, {
+      range: reel.sourceRange, raw: isRaw ? (frame.format as 'uyvy' | 'v210') : undefined,
+      width: frame.width, height: frame.height, maxPixels: UPLOAD_LIMITS.maxPixels,
+    })
+    const { spec, version } = await specForProduction(db, reel.productionId)
+    const a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true })
+    const images: Record<ImageKind, Uint8Array> = {
+      'thumb': await thumbnail(bytes, input, isRaw, reel.matrix),
+      'overlay': await png(renderRangeOverlay(input, spec, { matrix: reel.matrix }), OVERLAY_WIDTH),
+      'waveform-luma': await png(renderWaveform(a.waveform!, 'luma')),
+      'waveform-flat': await png(renderWaveform(a.waveform!, 'flat')),
+      'waveform-rgb': await png(renderWaveform(a.waveform!, 'rgb')),
+      'vectorscope': await png(renderVectorscope(a.vectorscope!, { matrix: reel.matrix })),
+    }
+    await Promise.all(Object.entries(images).map(([kind, data]) =>
+      storage.put(keys.image(frame.teamId, frame.id, kind), data, kind === 'thumb' && !isRaw ? 'image/jpeg' : 'image/png')))
+    const json = analysisJson(a, spec.name)
+    const h = a.histograms
+    const histograms = {
+      bins: h.bins, rgbCoding: h.rgbCoding,
+      y: [...h.y], cb: [...h.cb], cr: [...h.cr], r: [...h.r], g: [...h.g], b: [...h.b],
+    }
+    const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
+    await db.transaction(async (tx) => {
+      // The unique key on frame_id turns a racing second run into a no-op.
+      await tx.insert(t.analyses).values({
+        frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
+        lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
+        compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare,
+        result: json, histograms, images: Object.keys(images), durationMs: Math.round(performance.now() - started),
+      }).onDuplicateKeyUpdate({ set: { frameId } })
+      await tx.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
+    })
+    return { status: 'done' }
+  } catch (e) {
+    const permanent = e instanceof DecodeFileError || e instanceof UnrecoverableError
+    const lastAttempt = job.attemptsMade + 1 >= (job.opts.attempts ?? 1)
+    if (permanent || lastAttempt) {
+      await db.update(t.frames).set({ status: 'failed', failReason: failReason(e) }).where(eq(t.frames.id, frameId))
+      // No retry can mend a file that cannot be decoded.
+      if (permanent) throw new UnrecoverableError(failReason(e))
+    } else {
+      await db.update(t.frames).set({ status: 'queued', queuedAt: new Date() }).where(eq(t.frames.id, frameId))
+    }
+    throw e
+  }
+}

@@ -1,0 +1,35 @@
+// The outbox side of "nothing lost": frames whose job went missing (Redis restarted or was
+// down at upload, a worker died beyond BullMQ's stall recovery) are queued again. The job id
+// is the frame's, so a frame that still has a live job is left alone.
+import { and, eq, lt, or } from 'drizzle-orm'
+import type { Queue } from 'bullmq'
+import type { Db } from '../server/db/client'
+import * as t from '../server/db/schema'
+import { analyseJobId, type AnalyseJob } from '../shared/utils/queues'
+
+export const SWEEP = {
+  /** A `queued` frame older than this without a waiting job is queued again. */
+  queuedAfterMs: 20_000,
+  /** An `analysing` frame untouched this long has lost its worker. */
+  analysingAfterMs: 5 * 60_000,
+  batch: 500,
+}
+
+export async function sweep(db: Db, queue: Queue<AnalyseJob>, now = Date.now()): Promise<number> {
+  const stale = await db.select({ id: t.frames.id }).from(t.frames).where(or(
+    and(eq(t.frames.status, 'queued'), lt(t.frames.queuedAt, new Date(now - SWEEP.queuedAfterMs))),
+    and(eq(t.frames.status, 'analysing'), lt(t.frames.updatedAt, new Date(now - SWEEP.analysingAfterMs))),
+  )).limit(SWEEP.batch)
+  let requeued = 0
+  for (const { id } of stale) {
+    const job = await queue.getJob(analyseJobId(id))
+    const state = job ? await job.getState() : 'missing'
+    if (state === 'waiting' || state === 'active' || state === 'delayed' || state === 'prioritized' || state === 'waiting-children') continue
+    // A finished job with this id would swallow the new add: remove it first.
+    if (job) await job.remove().catch(() => {})
+    await queue.add('analyse', { frameId: id }, { jobId: analyseJobId(id) })
+    await db.update(t.frames).set({ status: 'queued', queuedAt: new Date() }).where(eq(t.frames.id, id))
+    requeued++
+  }
+  return requeued
+}
