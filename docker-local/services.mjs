@@ -143,7 +143,7 @@ function launch(p, name, cmd, args, extra = {}) {
   return child.pid
 }
 
-async function startMariadb(p) {
+export async function startMariadb(p) {
   const dir = join(p.dataDir, 'mariadb')
   const sock = join(p.runDir, 'mariadb.sock')
   if (!readPid(p, 'mariadb')) {
@@ -176,7 +176,7 @@ export function resetDatabase(p) {
     `DROP DATABASE IF EXISTS \`${p.database}\`; CREATE DATABASE \`${p.database}\` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci; GRANT ALL PRIVILEGES ON \`${p.database}\`.* TO '${p.dbUser}'@'127.0.0.1'`])
 }
 
-async function startRedis(p) {
+export async function startRedis(p) {
   if (!readPid(p, 'redis')) {
     if (await portOpen(p.ports.redis)) throw new Error(`Port ${p.ports.redis} is taken by another program; set LW_REDIS_PORT`)
     // noeviction: BullMQ must never lose a job to memory pressure.
@@ -187,7 +187,7 @@ async function startRedis(p) {
   log(`Redis     127.0.0.1:${p.ports.redis}`)
 }
 
-async function startS3(p) {
+export async function startS3(p) {
   if (!readPid(p, 's3')) {
     if (await portOpen(p.ports.s3)) throw new Error(`Port ${p.ports.s3} is taken by another program; set LW_S3_PORT`)
     const dir = join(p.dataDir, 's3')
@@ -200,7 +200,7 @@ async function startS3(p) {
   log(`S3 fake   http://127.0.0.1:${p.ports.s3} bucket ${p.bucket}`)
 }
 
-async function startMail(p) {
+export async function startMail(p) {
   if (!readPid(p, 'mail')) {
     for (const port of [p.ports.smtp, p.ports.mailUi]) {
       if (await portOpen(port)) throw new Error(`Port ${port} is taken by another program; set LW_SMTP_PORT / LW_MAILUI_PORT`)
@@ -223,17 +223,20 @@ export async function startServices(p) {
   await startMail(p)
 }
 
+/** Stops one service this script started (fault tests use it on Redis and MariaDB). */
+export async function stopService(p, name) {
+  const pid = readPid(p, name)
+  if (pid) {
+    try { process.kill(-pid, 'SIGTERM') } catch { try { process.kill(pid, 'SIGTERM') } catch { /* gone */ } }
+    await waitFor(() => !alive(pid), `${name} stop`, 30000).catch(() => process.kill(pid, 'SIGKILL'))
+    log(`stopped ${name}`)
+  }
+  rmSync(pidFile(p, name), { force: true })
+}
+
 export async function stopServices(p) {
   if (!existsSync(p.runDir)) return
-  for (const name of ['mail', 's3', 'redis', 'mariadb']) {
-    const pid = readPid(p, name)
-    if (pid) {
-      try { process.kill(-pid, 'SIGTERM') } catch { try { process.kill(pid, 'SIGTERM') } catch { /* gone */ } }
-      await waitFor(() => !alive(pid), `${name} stop`, 30000).catch(() => process.kill(pid, 'SIGKILL'))
-      log(`stopped ${name}`)
-    }
-    rmSync(pidFile(p, name), { force: true })
-  }
+  for (const name of ['mail', 's3', 'redis', 'mariadb']) await stopService(p, name)
 }
 
 export function status(p) {

@@ -3,7 +3,7 @@
 // Plain Node without dependencies: it runs before node_modules exists on a fresh clone.
 import { spawn, spawnSync } from 'node:child_process'
 import { createHash, randomBytes } from 'node:crypto'
-import { existsSync, mkdirSync, readFileSync, readdirSync, statSync, writeFileSync } from 'node:fs'
+import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs'
 import { join, relative } from 'node:path'
 import { ROOT } from './services.mjs'
 
@@ -72,8 +72,12 @@ export function migrateAndSeed(env) {
   run(process.execPath, ['--import', 'tsx', 'server/db/seed.ts'], { env })
 }
 
-/** Starts the built server and one worker; returns a stop function. */
-export function startApp(env, { port, quiet = false, onExit } = {}) {
+/**
+ * Starts the built server and one worker; returns a stop function. PIDs go to
+ * `<runDir>/app-*.pid`, so a fault test may kill the worker and start another in its place
+ * (tests/support/stack.ts) and stop() still ends whatever is listed there.
+ */
+export function startApp(env, { port, runDir, quiet = false, onExit } = {}) {
   const children = []
   const stdio = quiet ? ['ignore', 'ignore', 'inherit'] : 'inherit'
   const add = (name, args, extraEnv = {}) => {
@@ -83,10 +87,20 @@ export function startApp(env, { port, quiet = false, onExit } = {}) {
       onExit?.(name, code, signal)
     })
     children.push(child)
+    if (runDir) writeFileSync(join(runDir, `app-${name}-${child.pid}.pid`), String(child.pid))
   }
   add('server', [join(ROOT, '.output/server/index.mjs')], { PORT: String(port), HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', NITRO_PORT: String(port) })
   add('worker', ['--import', 'tsx', join(ROOT, 'workers/index.ts')])
   return async function stop() {
+    if (runDir) {
+      for (const f of readdirSync(runDir).filter((f) => f.startsWith('app-') && f.endsWith('.pid'))) {
+        const pid = Number(readFileSync(join(runDir, f), 'utf8'))
+        if (!children.some((c) => c.pid === pid)) {
+          try { process.kill(pid, 'SIGTERM') } catch { /* already gone */ }
+        }
+        rmSync(join(runDir, f), { force: true })
+      }
+    }
     for (const c of children) if (!c.exited) c.kill('SIGTERM')
     await Promise.all(children.map((c) => c.exited ? null : new Promise((r) => {
       const t = setTimeout(() => { c.kill('SIGKILL'); r() }, 15000)

@@ -25,7 +25,7 @@ try {
   migrateAndSeed(env)
   ensureBuild()
   stopApp = startApp(env, {
-    port: p.ports.app,
+    port: p.ports.app, runDir: p.runDir,
     onExit: (name, code, signal) => {
       if (!stopping) {
         log(`${name} stopped unexpectedly (${signal ?? `exit ${code}`}); shutting down`)

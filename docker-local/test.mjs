@@ -27,10 +27,11 @@ try {
     ...serviceEnv(p),
     NUXT_SESSION_PASSWORD: randomBytes(36).toString('base64url'),
     LW_APP_URL: `http://127.0.0.1:${p.ports.app}`,
+    LW_PROFILE: p.name,
   }
   migrateAndSeed(env)
   ensureBuild()
-  stopApp = startApp(env, { port: p.ports.app, quiet: true })
+  stopApp = startApp(env, { port: p.ports.app, runDir: p.runDir, quiet: true })
   await waitForHttp(`${env.LW_APP_URL}/login`)
   log('running tests')
   code = await new Promise((resolve) => {
