@@ -11,7 +11,8 @@ const FIELD_NAMES: Record<string, string> = {
   password: 'Password',
   name: 'Name',
   role: 'Role',
-  token: 'Link',
+  // The token's own message already says "This link is not valid".
+  token: '',
   client: 'Client',
   teamId: 'Team',
   userId: 'Member',
@@ -21,7 +22,8 @@ const FIELD_NAMES: Record<string, string> = {
 function issuesText(issues: Issue[]): string {
   return issues
     .map((i) => {
-      const field = i.path?.length ? FIELD_NAMES[String(i.path[0])] ?? String(i.path[0]) : ''
+      const key = i.path?.length ? String(i.path[0]) : ''
+      const field = key in FIELD_NAMES ? FIELD_NAMES[key] : key
       return field ? `${field}: ${i.message}` : (i.message ?? '')
     })
     .filter(Boolean)
