@@ -6,6 +6,8 @@ export interface ApiResponse<T = any> {
   headers: Headers
 }
 
+export interface UploadResult { name: string; ok: boolean; frameId?: number; duplicate?: boolean; queued?: boolean; status?: number; reason?: string }
+
 /** A tiny HTTP client with its own cookie jar: one instance is one signed-in browser. */
 export class Client {
   private cookies = new Map<string, string>()
@@ -33,6 +35,22 @@ export class Client {
     let parsed: unknown = text
     try { parsed = text ? JSON.parse(text) : null } catch { /* not JSON */ }
     return { status: res.status, body: parsed as T, headers: res.headers }
+  }
+
+  /** The Cookie header this client sends, for requests made with plain fetch (multipart, images). */
+  cookieHeader() {
+    return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ')
+  }
+
+  /** multipart/form-data upload of files to a reel, as a script would send it. */
+  async uploadFrames(reelId: number, files: { name: string; bytes: Uint8Array }[], query = '') {
+    const form = new FormData()
+    for (const f of files) form.append('file', new Blob([f.bytes]), f.name)
+    const res = await fetch(new URL(`/api/reels/${reelId}/frames${query}`, APP_URL()), { method: 'POST', body: form, headers: { cookie: this.cookieHeader() } })
+    const text = await res.text()
+    let body: any = text
+    try { body = JSON.parse(text) } catch { /* not JSON */ }
+    return { status: res.status, body: body as { files: UploadResult[] } & { statusMessage?: string } }
   }
 
   get<T = any>(path: string) { return this.request<T>('GET', path) }
