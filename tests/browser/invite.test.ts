@@ -75,8 +75,7 @@ describe('inviting a reviewer', () => {
     expect(await row.innerText()).toContain('QC reviewer')
     await screen(ownerPage, '04-team-invitation-sent')
 
-    // Inviting the same person again while they are a member is refused; while only invited, it is allowed,
-    // so the conflict case is exercised with an existing member.
+    // The server refuses an address that is already a member (409); the form shows its reason.
     await ownerPage.getByTestId('invite-email').fill(DEMO_USERS[1]!.email)
     await ownerPage.getByTestId('invite-submit').click()
     await expect.poll(() => ownerPage.getByTestId('invite-error').textContent()).toBe(`${DEMO_USERS[1]!.email} is already a member of this team`)
@@ -144,5 +143,18 @@ describe('inviting a reviewer', () => {
     expect(await member.getByTestId('member-role').inputValue()).toBe('reviewer')
     expect(await ownerPage.locator(`[data-testid="invitation-row"][data-email="${invitee.email}"]`).count()).toBe(0)
     await screen(ownerPage, '11-team-after-accept')
+  })
+
+  it('asks before removing a member, then removes them', async () => {
+    const member = ownerPage.locator(`[data-testid="member-row"][data-email="${invitee.email}"]`)
+    await member.getByTestId('member-remove').click()
+    const prompt = ownerPage.getByTestId('member-remove-prompt')
+    expect(await prompt.innerText()).toContain(`Remove ${invitee.name} from the team?`)
+    // Nothing is removed until the question is answered.
+    expect(await member.count()).toBe(1)
+    await screen(ownerPage, '12-team-remove-confirm')
+    await prompt.getByTestId('member-remove-confirm').click()
+    await expect.poll(() => ownerPage.getByTestId('team-notice').textContent()).toBe(`${invitee.name} was removed from the team.`)
+    await expect.poll(() => member.count()).toBe(0)
   })
 })
