@@ -6,9 +6,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import * as t from '../../server/db/schema'
 import { CAN, ROLES, type Permission, type Role } from '../../shared/utils/roles'
 import { Client } from '../support/api'
-import { addMember, closeDb, createProduction, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
+import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
+import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number }
+type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'DELETE'
   file: string
@@ -30,7 +31,19 @@ const ROUTES: Route[] = [
   { method: 'DELETE', file: 'teams/[teamId]/invitations/[id].delete.ts', path: (c) => `/api/teams/${c.teamId}/invitations/${c.invitationId}`, permission: 'manageTeam' },
   { method: 'GET', file: 'teams/[teamId]/productions/index.get.ts', path: (c) => `/api/teams/${c.teamId}/productions`, permission: 'view' },
   { method: 'POST', file: 'teams/[teamId]/productions/index.post.ts', path: (c) => `/api/teams/${c.teamId}/productions`, body: () => ({ name: `Matrix ${uid()}`, client: '' }), permission: 'createProduction' },
-  { method: 'GET', file: 'productions/[id].get.ts', path: (c) => `/api/productions/${c.productionId}`, permission: 'view' },
+  { method: 'GET', file: 'productions/[id]/index.get.ts', path: (c) => `/api/productions/${c.productionId}`, permission: 'view' },
+  { method: 'POST', file: 'productions/[id]/reels.post.ts', path: (c) => `/api/productions/${c.productionId}/reels`, body: () => ({ name: `Reel ${uid()}` }), permission: 'upload' },
+  { method: 'GET', file: 'reels/[id]/index.get.ts', path: (c) => `/api/reels/${c.reelId}`, permission: 'view' },
+  { method: 'PATCH', file: 'reels/[id]/index.patch.ts', path: (c) => `/api/reels/${c.reelId}`, body: () => ({ sourceLabel: 'Camera B' }), permission: 'upload' },
+  { method: 'GET', file: 'reels/[id]/frames.get.ts', path: (c) => `/api/reels/${c.reelId}/frames`, permission: 'view' },
+  // JSON instead of multipart: an allowed role gets 400 "send the files…", never an access error.
+  { method: 'POST', file: 'reels/[id]/frames.post.ts', path: (c) => `/api/reels/${c.reelId}/frames`, permission: 'upload' },
+  { method: 'POST', file: 'reels/[id]/uploads.post.ts', path: (c) => `/api/reels/${c.reelId}/uploads`, body: () => ({ files: [{ name: 'a.png', size: 1000, format: 'png' }] }), permission: 'upload' },
+  // Nothing was PUT to storage: an allowed role gets 409 "has not arrived".
+  { method: 'POST', file: 'reels/[id]/uploads/[uploadId]/complete.post.ts', path: (c) => `/api/reels/${c.reelId}/uploads/${c.uploadId}/complete`, permission: 'upload' },
+  { method: 'GET', file: 'frames/[id]/index.get.ts', path: (c) => `/api/frames/${c.frameId}`, permission: 'view' },
+  { method: 'GET', file: 'frames/[id]/line/[n].get.ts', path: (c) => `/api/frames/${c.frameId}/line/3`, permission: 'view' },
+  { method: 'GET', file: 'frames/[id]/images/[kind].get.ts', path: (c) => `/api/frames/${c.frameId}/images/thumb`, permission: 'view' },
 ]
 
 /** Routes that need no session: the token or the credentials are the proof. */
@@ -47,6 +60,8 @@ function routeFiles(dir: string, root = dir): string[] {
 }
 
 let team: Awaited<ReturnType<typeof createTeamWithRoles>>
+let reelId = 0
+let frameId = 0
 let outsider: Awaited<ReturnType<typeof createUser>>
 const clients = new Map<Role | 'outsider', Client>()
 
@@ -56,6 +71,14 @@ beforeAll(async () => {
   outsider = other.users.owner
   for (const role of ROLES) clients.set(role, await new Client().login(team.users[role].email, team.users[role].password))
   clients.set('outsider', await new Client().login(outsider.email, outsider.password))
+  const owner = clients.get('owner')!
+  reelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel' })).body.id
+  const up = await owner.uploadFrames(reelId, [{ name: 'matrix.png', bytes: await png8(64, 36, 4242) }])
+  frameId = up.body.files[0]!.frameId!
+  for (let i = 0; i < 200; i++) {
+    if ((await owner.get(`/api/frames/${frameId}`)).body.frame.status === 'done') break
+    await new Promise((r) => setTimeout(r, 250))
+  }
 })
 afterAll(closeDb)
 
@@ -66,7 +89,8 @@ async function freshCtx(): Promise<Ctx> {
   const [{ id: invitationId }] = await db().insert(t.invitations).values({
     teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
   }).$returningId()
-  return { teamId: team.teamId, productionId: team.productionId ?? await createProduction(team.teamId), spareUserId: spare.id, invitationId }
+  const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
+  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId }
 }
 
 async function call(client: Client, r: Route, c: Ctx) {
@@ -89,8 +113,13 @@ describe('access matrix', () => {
         const allowed = r.permission === null || (CAN[r.permission] as readonly Role[]).includes(role)
         it(`${role}: ${allowed ? 'allowed' : '403'}`, async () => {
           const res = await call(clients.get(role)!, r, await freshCtx())
-          if (allowed) expect(res.status, JSON.stringify(res.body)).toBeLessThan(300)
-          else expect(res.status).toBe(403)
+          if (allowed) {
+            // Allowed means past the access checks: any answer but 401/403/404 and no server error.
+            expect([401, 403, 404], JSON.stringify(res.body)).not.toContain(res.status)
+            expect(res.status, JSON.stringify(res.body)).toBeLessThan(500)
+          } else {
+            expect(res.status).toBe(403)
+          }
         })
       }
 
