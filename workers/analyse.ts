@@ -31,8 +31,8 @@ const r3 = (v: number) => Math.round(v * 1000) / 1000
 const r6 = (v: number) => Math.round(v * 1e6) / 1e6
 
 function toJson(a: FrameAnalysis, specName: string, line?: LinePlot) {
-  const round = <T extends Record<string, number>>(o: T): T =>
-    Object.fromEntries(Object.entries(o).map(([k, v]) => [k, r3(v)])) as T
+  const round = <T extends object>(o: T): T =>
+    Object.fromEntries(Object.entries(o).map(([k, v]) => [k, r3(v as number)])) as T
   return {
     engineVersion: ENGINE_VERSION,
     width: a.width, height: a.height, bitDepth: a.bitDepth, matrix: a.matrix, range: a.range,

@@ -1,13 +1,12 @@
-import { makeRowBuffers, makeRowSource } from './decode'
-import type { RowSource } from './decode'
+import { makeRowSource } from './decode'
 import { MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre, ireToCode8 } from './scales'
 import { builtinSpec, DEFAULT_SPEC_NAME } from './specs'
 import type { DeliverySpec } from './specs'
 import { evaluateSpec } from './verdict'
 import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP, percentile, shareAbove, shareBelow } from './levels'
-import { newWaveformAccumulator } from './waveform'
-import { newVectorscopeAccumulator } from './vectorscope'
+import { waveformGeometry, waveformRowOffsets, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP, WAVEFORM_ROWS } from './waveform'
+import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 import type { AnalyseOptions, FrameAnalysis, FrameInput, Histograms, LevelDistributions, MatrixName } from './types'
 
 /** Composite limits behind shares.compositeOut: −20…+120 IRE (REFERENCE.md §6, NTSC practice). */
@@ -21,9 +20,15 @@ export const COMPOSITE_OUT_HIGH_IRE = 120
  */
 export const GAMUT_MARGIN_CODE8 = 1.5
 
+// Studio-range test on the same quarter-code grid as the level distributions, so that
+// shares.studioOut agrees with what a spec on those distributions would count.
 const LOW_BAND = 16 - LEVEL_STEP / 2
 const HIGH_LUMA = 235 + LEVEL_STEP / 2
 const HIGH_CHROMA = 240 + LEVEL_STEP / 2
+
+// Coarse Cb/Cr histograms are filled with a margin of 128 codes each side and folded into
+// the published 0..bins−1 range at the end, so the hot loop needs no clamping.
+const COARSE_PAD = 128
 
 export function resolveMatrix(m: string | undefined): MatrixName {
   if (m === undefined || m === '601') return '601'
@@ -31,8 +36,7 @@ export function resolveMatrix(m: string | undefined): MatrixName {
   throw new Error(`unknown matrix "${m}" (use 601 or 709)`)
 }
 
-interface Accumulated {
-  n: number
+interface Totals {
   sumY: number
   yMin: number
   yMax: number
@@ -48,145 +52,308 @@ interface Accumulated {
   studioOut: number
 }
 
+interface Densities {
+  columns: number
+  decimation: number
+  colOf: Int32Array
+  /** Level-bin index → row offset (row · columns) in the waveform densities. */
+  rowOff: Int32Array
+  luma: Uint32Array
+  flat: Uint32Array
+  r: Uint32Array
+  g: Uint32Array
+  b: Uint32Array
+  vector: Uint32Array
+}
+
 export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): FrameAnalysis {
   const matrix = resolveMatrix(opts.matrix)
   const src = makeRowSource(input, matrix)
   const spec: DeliverySpec = opts.spec ?? builtinSpec(DEFAULT_SPEC_NAME)!
   const { width, height } = src
+  const n = width * height
 
   const bins = src.histBins
   const hs = bins / 256
-  const hist = {
-    y: new Uint32Array(bins), cb: new Uint32Array(bins), cr: new Uint32Array(bins),
-    r: new Uint32Array(bins), g: new Uint32Array(bins), b: new Uint32Array(bins),
-  }
+  const padded = bins + 2 * COARSE_PAD * hs
+  const cbHist = new Uint32Array(padded)
+  const crHist = new Uint32Array(padded)
+  const L = (): Uint32Array => new Uint32Array(LEVEL_BINS)
   const levels: LevelDistributions = {
     min: LEVEL_MIN, step: LEVEL_STEP,
-    luma: new Uint32Array(LEVEL_BINS), compMax: new Uint32Array(LEVEL_BINS), compMin: new Uint32Array(LEVEL_BINS),
-    rgbMax: new Uint32Array(LEVEL_BINS), rgbMin: new Uint32Array(LEVEL_BINS),
+    luma: L(), compMax: L(), compMin: L(), rgbMax: L(), rgbMin: L(), r: L(), g: L(), b: L(),
   }
-  const wf = opts.keepDensities ? newWaveformAccumulator(width) : undefined
-  const vs = opts.keepDensities ? newVectorscopeAccumulator() : undefined
 
-  const buf = makeRowBuffers(width)
-  const acc: Accumulated = {
-    n: 0, sumY: 0, yMin: Infinity, yMax: -Infinity, cbMin: Infinity, cbMax: -Infinity, crMin: Infinity, crMax: -Infinity,
+  let dens: Densities | undefined
+  if (opts.keepDensities) {
+    const { columns, decimation } = waveformGeometry(width)
+    const colOf = new Int32Array(width)
+    for (let x = 0; x < width; x++) colOf[x] = Math.floor(x / decimation)
+    const size = columns * WAVEFORM_ROWS
+    dens = {
+      columns, decimation, colOf, rowOff: waveformRowOffsets(columns),
+      luma: new Uint32Array(size), flat: new Uint32Array(size),
+      r: new Uint32Array(size), g: new Uint32Array(size), b: new Uint32Array(size),
+      vector: new Uint32Array(VECTORSCOPE_SIZE * VECTORSCOPE_SIZE),
+    }
+  }
+
+  const cw = (width + (1 << src.chromaShift) - 1) >> src.chromaShift
+  const pbRow = new Float64Array(cw)
+  const prRow = new Float64Array(cw)
+  const yRow = new Float64Array(width)
+  const t: Totals = {
+    sumY: 0, yMin: Infinity, yMax: -Infinity, cbMin: Infinity, cbMax: -Infinity, crMin: Infinity, crMax: -Infinity,
     compMin: Infinity, compMax: -Infinity, cMax: 0, compositeOut: 0, gamutOut: 0, studioOut: 0,
   }
   const m = MATRICES[matrix]
-  const uK = U_WEIGHT * m.cbDiv
-  const vK = V_WEIGHT * m.crDiv
+  const coef = {
+    uK: U_WEIGHT * m.cbDiv, vK: V_WEIGHT * m.crDiv,
+    rK: 219 * m.crDiv, bK: 219 * m.cbDiv,
+    // G' − Y' = −(Kr(R'−Y') + Kb(B'−Y'))/Kg
+    gR: -219 * m.kr * m.crDiv / m.kg, gB: -219 * m.kb * m.cbDiv / m.kg,
+    cbOff: COARSE_PAD * hs + 0.5, hs,
+  }
   for (let row = 0; row < height; row++) {
-    src.readRow(row, buf)
-    accumulateRow(buf.y, buf.pb, buf.pr, buf.r, buf.g, buf.b, width, src, hs, uK, vK, hist, levels, acc)
-    if (wf) wf.addRow(buf, uK, vK)
-    if (vs) vs.addRow(buf, width, uK, vK)
+    src.readYcc(row, yRow, pbRow, prRow)
+    if (dens) rowPassWithDensities(yRow, pbRow, prRow, width, src.chromaShift, coef, cbHist, crHist, levels, t, dens)
+    else rowPass(yRow, pbRow, prRow, width, src.chromaShift, coef, cbHist, crHist, levels, t)
   }
 
-  const n = width * height
+  const fold = (h: Uint32Array): Uint32Array => {
+    const out = new Uint32Array(bins)
+    const off = COARSE_PAD * hs
+    for (let i = 0; i < h.length; i++) {
+      const k = i - off
+      out[k < 0 ? 0 : k >= bins ? bins - 1 : k]! += h[i]!
+    }
+    return out
+  }
   const histograms: Histograms = {
-    bins, y: hist.y, cb: hist.cb, cr: hist.cr, rgbCoding: src.rgbCoding, r: hist.r, g: hist.g, b: hist.b, levels,
+    bins,
+    y: coarseFromLevels(levels.luma, bins, hs, 0),
+    cb: fold(cbHist),
+    cr: fold(crHist),
+    rgbCoding: src.rgbCoding,
+    r: coarseFromLevels(levels.r, bins, src.rgbHistScale / 219, src.rgbHistOffset - 16 * src.rgbHistScale / 219),
+    g: coarseFromLevels(levels.g, bins, src.rgbHistScale / 219, src.rgbHistOffset - 16 * src.rgbHistScale / 219),
+    b: coarseFromLevels(levels.b, bins, src.rgbHistScale / 219, src.rgbHistOffset - 16 * src.rgbHistScale / 219),
+    levels,
   }
   const luma = {
-    min: acc.yMin,
+    min: t.yMin,
     p1: percentile(levels.luma, n, 0.01),
     p10: percentile(levels.luma, n, 0.10),
     p50: percentile(levels.luma, n, 0.50),
-    mean: acc.sumY / n,
+    mean: t.sumY / n,
     p90: percentile(levels.luma, n, 0.90),
     p99: percentile(levels.luma, n, 0.99),
-    max: acc.yMax,
+    max: t.yMax,
   }
   const base = {
     width, height, bitDepth: src.bitDepth, matrix, range: src.range,
     luma,
     lumaIre: { min: code8ToIre(luma.min), mean: code8ToIre(luma.mean), max: code8ToIre(luma.max) },
-    compositeIre: { min: code8ToIre(acc.compMin), max: code8ToIre(acc.compMax) },
+    compositeIre: { min: code8ToIre(t.compMin), max: code8ToIre(t.compMax) },
     chroma: {
-      cbMin: acc.cbMin, cbMax: acc.cbMax, crMin: acc.crMin, crMax: acc.crMax,
-      // acc.cMax is the amplitude in codes; p-p on the setup scale is 2·92.5·C (REFERENCE.md §4).
-      ppMaxIre: 2 * 92.5 * acc.cMax / 219,
+      cbMin: t.cbMin, cbMax: t.cbMax, crMin: t.crMin, crMax: t.crMax,
+      // t.cMax is the amplitude in codes; p-p on the setup scale is 2·92.5·C (REFERENCE.md §4).
+      ppMaxIre: 2 * 92.5 * t.cMax / 219,
     },
     shares: {
       belowBlack: shareBelow(levels.luma, LEVEL_MIN, LEVEL_STEP, 16, n),
       aboveWhite: shareAbove(levels.luma, LEVEL_MIN, LEVEL_STEP, 235, n),
-      compositeOut: acc.compositeOut / n,
-      gamutOut: acc.gamutOut / n,
+      compositeOut: t.compositeOut / n,
+      gamutOut: t.gamutOut / n,
       clipped: shareAbove(levels.luma, LEVEL_MIN, LEVEL_STEP, src.topCode8 - LEVEL_STEP / 2, n),
       crushed: shareBelow(levels.luma, LEVEL_MIN, LEVEL_STEP, src.bottomCode8 + LEVEL_STEP / 2, n),
-      studioOut: acc.studioOut / n,
+      studioOut: t.studioOut / n,
     },
     histograms,
   }
   const v = evaluateSpec(base, spec)
   const out: FrameAnalysis = { ...base, verdict: v.verdict, reasons: v.reasons }
-  if (wf) out.waveform = wf.result()
-  if (vs) out.vectorscope = vs.result()
+  if (dens) {
+    out.waveform = {
+      columns: dens.columns, rows: WAVEFORM_ROWS, ireBottom: WAVEFORM_IRE_BOTTOM, ireTop: WAVEFORM_IRE_TOP,
+      decimation: dens.decimation, luma: dens.luma, flat: dens.flat, rgb: { r: dens.r, g: dens.g, b: dens.b },
+    }
+    out.vectorscope = { size: VECTORSCOPE_SIZE, extent: VECTORSCOPE_EXTENT, data: dens.vector }
+  }
   return out
 }
 
-// Kept as a free function over plain locals: V8 keeps the hot loop monomorphic and the
-// accumulators in registers, which an object method or per-pixel callback would not.
-function accumulateRow(
-  Y: Float64Array, PB: Float64Array, PR: Float64Array, R: Float64Array, G: Float64Array, B: Float64Array,
-  width: number, src: RowSource, hs: number, uK: number, vK: number,
-  hist: { y: Uint32Array, cb: Uint32Array, cr: Uint32Array, r: Uint32Array, g: Uint32Array, b: Uint32Array },
-  levels: LevelDistributions, acc: Accumulated,
+/**
+ * A coarse histogram from a level distribution: level bin centre v goes to coarse bin
+ * round(offset + scale·v). Each quarter-code level bin holds at most one 8-bit or 10-bit code,
+ * so for Y'CbCr and 8-bit R'G'B' sources this is the histogram of the codes themselves.
+ */
+function coarseFromLevels(d: Uint32Array, bins: number, scale: number, offset: number): Uint32Array {
+  const out = new Uint32Array(bins)
+  for (let i = 0; i < d.length; i++) {
+    const c = d[i]!
+    if (!c) continue
+    const k = Math.floor(offset + scale * (LEVEL_MIN + i * LEVEL_STEP) + 0.5)
+    out[k < 0 ? 0 : k >= bins ? bins - 1 : k]! += c
+  }
+  return out
+}
+
+interface Coef { uK: number, vK: number, rK: number, bK: number, gR: number, gB: number, cbOff: number, hs: number }
+
+// The level-bin index of a code: centred quarter-code bins from LEVEL_MIN. The span of
+// LEVEL_MIN.. is wide enough for every level any accepted input can produce (levels.ts), so
+// no clamp is needed; a typed-array store out of range would be dropped, never written.
+const LV_OFF = -LEVEL_MIN / LEVEL_STEP + 0.5
+const LV_SCALE = 1 / LEVEL_STEP
+const COMP_HI = ireToCode8(COMPOSITE_OUT_HIGH_IRE)
+const COMP_LO = ireToCode8(COMPOSITE_OUT_LOW_IRE)
+const GAM_HI = 235 + GAMUT_MARGIN_CODE8
+const GAM_LO = 16 - GAMUT_MARGIN_CODE8
+const VS_SCALE = VECTORSCOPE_SIZE / (2 * VECTORSCOPE_EXTENT)
+const VS_LAST = VECTORSCOPE_SIZE - 1
+
+/**
+ * One line of the picture into every accumulator. Chroma-only work (Cb/Cr, chroma amplitude,
+ * R'G'B' offsets, the vectorscope) runs when the chroma sample changes: every pixel for
+ * 4:4:4 and R'G'B', every second pixel for 4:2:2. The pass with densities is a copy of this
+ * one with the waveform stores added, so the common case carries no per-pixel test for them;
+ * a shared helper would cost a call or an object per pixel in the hot loop.
+ */
+function rowPass(
+  Y: Float64Array, PB: Float64Array, PR: Float64Array, width: number, shift: number, k: Coef,
+  cbHist: Uint32Array, crHist: Uint32Array, lv: LevelDistributions, t: Totals,
 ): void {
-  const last = hist.y.length - 1
-  const hy = hist.y; const hcb = hist.cb; const hcr = hist.cr; const hr = hist.r; const hg = hist.g; const hb = hist.b
-  const dl = levels.luma; const dhi = levels.compMax; const dlo = levels.compMin; const dmx = levels.rgbMax; const dmn = levels.rgbMin
-  const rs = src.rgbHistScale; const ro = src.rgbHistOffset + 0.5
-  const compHi = ireToCode8(COMPOSITE_OUT_HIGH_IRE); const compLo = ireToCode8(COMPOSITE_OUT_LOW_IRE)
-  const gamHi = 235 + GAMUT_MARGIN_CODE8; const gamLo = 16 - GAMUT_MARGIN_CODE8
-  const lvOff = -LEVEL_MIN * 4 + 0.5
-  const lvLast = LEVEL_BINS - 1
-  let sumY = 0; let yMin = acc.yMin; let yMax = acc.yMax
-  let cbMin = acc.cbMin; let cbMax = acc.cbMax; let crMin = acc.crMin; let crMax = acc.crMax
-  let compMin = acc.compMin; let compMax = acc.compMax; let cMax = acc.cMax
+  const { uK, vK, rK, bK, gR, gB, cbOff, hs } = k
+  const dl = lv.luma; const dhi = lv.compMax; const dlo = lv.compMin; const dmx = lv.rgbMax; const dmn = lv.rgbMin
+  const dr = lv.r; const dg = lv.g; const db = lv.b
+  let sumY = 0; let yMin = t.yMin; let yMax = t.yMax; let compMin = t.compMin; let compMax = t.compMax
+  let cbMin = t.cbMin; let cbMax = t.cbMax; let crMin = t.crMin; let crMax = t.crMax; let cMax = t.cMax
   let compOut = 0; let gamOut = 0; let studOut = 0
+  let c = 0; let ro = 0; let go = 0; let bo = 0; let mxo = 0; let mno = 0; let cOut = false
+  let lastJ = -1
   for (let x = 0; x < width; x++) {
-    const y = Y[x]!; const pb = PB[x]!; const pr = PR[x]!
+    const j = x >> shift
+    if (j !== lastJ) {
+      lastJ = j
+      const pb = PB[j]!; const pr = PR[j]!
+      const cnt = shift && x + 1 < width ? 2 : 1
+      const cb = 128 + 224 * pb
+      const cr = 128 + 224 * pr
+      if (cb < cbMin) cbMin = cb
+      if (cb > cbMax) cbMax = cb
+      if (cr < crMin) crMin = cr
+      if (cr > crMax) crMax = cr
+      cbHist[(cb * hs + cbOff) | 0]! += cnt
+      crHist[(cr * hs + cbOff) | 0]! += cnt
+      const u = uK * pb; const v = vK * pr
+      c = 219 * Math.sqrt(u * u + v * v)
+      if (c > cMax) cMax = c
+      ro = rK * pr; bo = bK * pb; go = gR * pr + gB * pb
+      mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
+      mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
+      cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
+    }
+    const y = Y[x]!
     sumY += y
     if (y < yMin) yMin = y
     if (y > yMax) yMax = y
-    const cb = 128 + 224 * pb
-    const cr = 128 + 224 * pr
-    if (cb < cbMin) cbMin = cb
-    if (cb > cbMax) cbMax = cb
-    if (cr < crMin) crMin = cr
-    if (cr > crMax) crMax = cr
-    const u = uK * pb; const v = vK * pr
-    const c = 219 * Math.sqrt(u * u + v * v)
-    if (c > cMax) cMax = c
     const hi = y + c; const lo = y - c
     if (hi > compMax) compMax = hi
     if (lo < compMin) compMin = lo
-    const r = 16 + 219 * R[x]!; const g = 16 + 219 * G[x]!; const b = 16 + 219 * B[x]!
-    const mx = r > g ? (r > b ? r : b) : (g > b ? g : b)
-    const mn = r < g ? (r < b ? r : b) : (g < b ? g : b)
-
-    let i = (y * 4 + lvOff) | 0; dl[i < 0 ? 0 : i > lvLast ? lvLast : i]!++
-    i = (hi * 4 + lvOff) | 0; dhi[i < 0 ? 0 : i > lvLast ? lvLast : i]!++
-    i = (lo * 4 + lvOff) | 0; dlo[i < 0 ? 0 : i > lvLast ? lvLast : i]!++
-    i = (mx * 4 + lvOff) | 0; dmx[i < 0 ? 0 : i > lvLast ? lvLast : i]!++
-    i = (mn * 4 + lvOff) | 0; dmn[i < 0 ? 0 : i > lvLast ? lvLast : i]!++
-
-    i = (y * hs + 0.5) | 0; hy[i < 0 ? 0 : i > last ? last : i]!++
-    i = (cb * hs + 0.5) | 0; hcb[i < 0 ? 0 : i > last ? last : i]!++
-    i = (cr * hs + 0.5) | 0; hcr[i < 0 ? 0 : i > last ? last : i]!++
-    i = (R[x]! * rs + ro) | 0; hr[i < 0 ? 0 : i > last ? last : i]!++
-    i = (G[x]! * rs + ro) | 0; hg[i < 0 ? 0 : i > last ? last : i]!++
-    i = (B[x]! * rs + ro) | 0; hb[i < 0 ? 0 : i > last ? last : i]!++
-
-    if (hi > compHi || lo < compLo) compOut++
-    if (mx > gamHi || mn < gamLo) gamOut++
-    if (y < LOW_BAND || y >= HIGH_LUMA || cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA) studOut++
+    const mx = y + mxo; const mn = y + mno
+    dl[(y * LV_SCALE + LV_OFF) | 0]!++
+    dhi[(hi * LV_SCALE + LV_OFF) | 0]!++
+    dlo[(lo * LV_SCALE + LV_OFF) | 0]!++
+    dmx[(mx * LV_SCALE + LV_OFF) | 0]!++
+    dmn[(mn * LV_SCALE + LV_OFF) | 0]!++
+    dr[((y + ro) * LV_SCALE + LV_OFF) | 0]!++
+    dg[((y + go) * LV_SCALE + LV_OFF) | 0]!++
+    db[((y + bo) * LV_SCALE + LV_OFF) | 0]!++
+    if (hi > COMP_HI || lo < COMP_LO) compOut++
+    if (mx > GAM_HI || mn < GAM_LO) gamOut++
+    if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut++
   }
-  acc.n += width
-  acc.sumY += sumY
-  acc.yMin = yMin; acc.yMax = yMax
-  acc.cbMin = cbMin; acc.cbMax = cbMax; acc.crMin = crMin; acc.crMax = crMax
-  acc.compMin = compMin; acc.compMax = compMax; acc.cMax = cMax
-  acc.compositeOut += compOut; acc.gamutOut += gamOut; acc.studioOut += studOut
+  t.sumY += sumY; t.yMin = yMin; t.yMax = yMax; t.compMin = compMin; t.compMax = compMax
+  t.cbMin = cbMin; t.cbMax = cbMax; t.crMin = crMin; t.crMax = crMax; t.cMax = cMax
+  t.compositeOut += compOut; t.gamutOut += gamOut; t.studioOut += studOut
 }
+
+function rowPassWithDensities(
+  Y: Float64Array, PB: Float64Array, PR: Float64Array, width: number, shift: number, k: Coef,
+  cbHist: Uint32Array, crHist: Uint32Array, lv: LevelDistributions, t: Totals, d: Densities,
+): void {
+  const { uK, vK, rK, bK, gR, gB, cbOff, hs } = k
+  const dl = lv.luma; const dhi = lv.compMax; const dlo = lv.compMin; const dmx = lv.rgbMax; const dmn = lv.rgbMin
+  const dr = lv.r; const dg = lv.g; const db = lv.b
+  const { colOf, rowOff, luma: wl, flat: wf, r: wr, g: wg, b: wb, vector } = d
+  let sumY = 0; let yMin = t.yMin; let yMax = t.yMax; let compMin = t.compMin; let compMax = t.compMax
+  let cbMin = t.cbMin; let cbMax = t.cbMax; let crMin = t.crMin; let crMax = t.crMax; let cMax = t.cMax
+  let compOut = 0; let gamOut = 0; let studOut = 0
+  let c = 0; let ro = 0; let go = 0; let bo = 0; let mxo = 0; let mno = 0; let cOut = false
+  let lastJ = -1
+  for (let x = 0; x < width; x++) {
+    const j = x >> shift
+    if (j !== lastJ) {
+      lastJ = j
+      const pb = PB[j]!; const pr = PR[j]!
+      const cnt = shift && x + 1 < width ? 2 : 1
+      const cb = 128 + 224 * pb
+      const cr = 128 + 224 * pr
+      if (cb < cbMin) cbMin = cb
+      if (cb > cbMax) cbMax = cb
+      if (cr < crMin) crMin = cr
+      if (cr > crMax) crMax = cr
+      cbHist[(cb * hs + cbOff) | 0]! += cnt
+      crHist[(cr * hs + cbOff) | 0]! += cnt
+      const u = uK * pb; const v = vK * pr
+      c = 219 * Math.sqrt(u * u + v * v)
+      if (c > cMax) cMax = c
+      ro = rK * pr; bo = bK * pb; go = gR * pr + gB * pb
+      mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
+      mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
+      cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
+      let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
+      let vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
+      vc = vc < 0 ? 0 : vc > VS_LAST ? VS_LAST : vc
+      vr = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
+      vector[vr * VECTORSCOPE_SIZE + vc]! += cnt
+    }
+    const col = colOf[x]!
+    const y = Y[x]!
+    sumY += y
+    if (y < yMin) yMin = y
+    if (y > yMax) yMax = y
+    const hi = y + c; const lo = y - c
+    if (hi > compMax) compMax = hi
+    if (lo < compMin) compMin = lo
+    const mx = y + mxo; const mn = y + mno
+    const iy = (y * LV_SCALE + LV_OFF) | 0
+    const ihi = (hi * LV_SCALE + LV_OFF) | 0
+    const ilo = (lo * LV_SCALE + LV_OFF) | 0
+    const ir = ((y + ro) * LV_SCALE + LV_OFF) | 0
+    const ig = ((y + go) * LV_SCALE + LV_OFF) | 0
+    const ib = ((y + bo) * LV_SCALE + LV_OFF) | 0
+    dl[iy]!++
+    dhi[ihi]!++
+    dlo[ilo]!++
+    dmx[(mx * LV_SCALE + LV_OFF) | 0]!++
+    dmn[(mn * LV_SCALE + LV_OFF) | 0]!++
+    dr[ir]!++
+    dg[ig]!++
+    db[ib]!++
+    wl[rowOff[iy]! + col]!++
+    wf[rowOff[ihi]! + col]!++
+    wf[rowOff[ilo]! + col]!++
+    wr[rowOff[ir]! + col]!++
+    wg[rowOff[ig]! + col]!++
+    wb[rowOff[ib]! + col]!++
+    if (hi > COMP_HI || lo < COMP_LO) compOut++
+    if (mx > GAM_HI || mn < GAM_LO) gamOut++
+    if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut++
+  }
+  t.sumY += sumY; t.yMin = yMin; t.yMax = yMax; t.compMin = compMin; t.compMax = compMax
+  t.cbMin = cbMin; t.cbMax = cbMax; t.crMin = crMin; t.crMax = crMax; t.cMax = cMax
+  t.compositeOut += compOut; t.gamutOut += gamOut; t.studioOut += studOut
+}
+

@@ -40,6 +40,13 @@ export interface RowSource {
   topCode8: number
   bottomCode8: number
   readRow: (row: number, out: RowBuffers) => void
+  /** Chroma samples per pixel as a shift: 0 for 4:4:4 and R'G'B', 1 for 4:2:2. */
+  chromaShift: 0 | 1
+  /**
+   * The fast path of the analysis: luma codes per pixel into `y`, Pb/Pr at the source's own
+   * chroma resolution into `pb`/`pr` (so 4:2:2 chroma work is done once per pair).
+   */
+  readYcc: (row: number, y: Float64Array, pb: Float64Array, pr: Float64Array) => void
 }
 
 function checkDims(width: number, height: number): void {
@@ -116,6 +123,19 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
             pr[x] = (rr - yu) / crDiv
           }
         },
+        chromaShift: 0,
+        readYcc(row, y, pb, pr) {
+          let i = row * width * channels
+          for (let x = 0; x < width; x++, i += channels) {
+            const rr = data[i]! * scale + offset
+            const gg = data[i + 1]! * scale + offset
+            const bb = data[i + 2]! * scale + offset
+            const yu = gg + kr * (rr - gg) + kb * (bb - gg)
+            y[x] = 16 + 219 * yu
+            pb[x] = (bb - yu) / cbDiv
+            pr[x] = (rr - yu) / crDiv
+          }
+        },
       }
     }
     case 'uyvy': {
@@ -137,6 +157,16 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
           }
           fillRgbFromYcc(o)
         },
+        chromaShift: 1,
+        readYcc(row, y, pb, pr) {
+          let i = row * width * 2
+          for (let x = 0, c = 0; x < width; x += 2, c++, i += 4) {
+            pb[c] = (data[i]! - 128) / 224
+            y[x] = data[i + 1]!
+            pr[c] = (data[i + 2]! - 128) / 224
+            y[x + 1] = data[i + 3]!
+          }
+        },
       }
     }
     case 'v210': {
@@ -152,19 +182,7 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
       return {
         ...ycc10Common(width, height),
         readRow(row, o) {
-          let i = row * stride
-          for (let gI = 0; gI < groups; gI++, i += 16) {
-            const w0 = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16) | (data[i + 3]! << 24)
-            const w1 = data[i + 4]! | (data[i + 5]! << 8) | (data[i + 6]! << 16) | (data[i + 7]! << 24)
-            const w2 = data[i + 8]! | (data[i + 9]! << 8) | (data[i + 10]! << 16) | (data[i + 11]! << 24)
-            const w3 = data[i + 12]! | (data[i + 13]! << 8) | (data[i + 14]! << 16) | (data[i + 15]! << 24)
-            const yo = gI * 6
-            const co = gI * 3
-            cbs[co] = w0 & 1023; ys[yo] = (w0 >>> 10) & 1023; crs[co] = (w0 >>> 20) & 1023
-            ys[yo + 1] = w1 & 1023; cbs[co + 1] = (w1 >>> 10) & 1023; ys[yo + 2] = (w1 >>> 20) & 1023
-            crs[co + 1] = w2 & 1023; ys[yo + 3] = (w2 >>> 10) & 1023; cbs[co + 2] = (w2 >>> 20) & 1023
-            ys[yo + 4] = w3 & 1023; crs[co + 2] = (w3 >>> 10) & 1023; ys[yo + 5] = (w3 >>> 20) & 1023
-          }
+          unpack(row)
           const { y, pb, pr } = o
           for (let x = 0; x < width; x += 2) {
             const c = x >> 1
@@ -177,6 +195,30 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
           }
           fillRgbFromYcc(o)
         },
+        chromaShift: 1,
+        readYcc(row, y, pb, pr) {
+          unpack(row)
+          for (let x = 0; x < width; x++) y[x] = ys[x]! * 0.25
+          for (let c = 0; c < width >> 1; c++) {
+            pb[c] = (cbs[c]! - 512) / 896
+            pr[c] = (crs[c]! - 512) / 896
+          }
+        },
+      }
+      function unpack(row: number): void {
+        let i = row * stride
+        for (let gI = 0; gI < groups; gI++, i += 16) {
+          const w0 = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16) | (data[i + 3]! << 24)
+          const w1 = data[i + 4]! | (data[i + 5]! << 8) | (data[i + 6]! << 16) | (data[i + 7]! << 24)
+          const w2 = data[i + 8]! | (data[i + 9]! << 8) | (data[i + 10]! << 16) | (data[i + 11]! << 24)
+          const w3 = data[i + 12]! | (data[i + 13]! << 8) | (data[i + 14]! << 16) | (data[i + 15]! << 24)
+          const yo = gI * 6
+          const co = gI * 3
+          cbs[co] = w0 & 1023; ys[yo] = (w0 >>> 10) & 1023; crs[co] = (w0 >>> 20) & 1023
+          ys[yo + 1] = w1 & 1023; cbs[co + 1] = (w1 >>> 10) & 1023; ys[yo + 2] = (w1 >>> 20) & 1023
+          crs[co + 1] = w2 & 1023; ys[yo + 3] = (w2 >>> 10) & 1023; cbs[co + 2] = (w2 >>> 20) & 1023
+          ys[yo + 4] = w3 & 1023; crs[co + 2] = (w3 >>> 10) & 1023; ys[yo + 5] = (w3 >>> 20) & 1023
+        }
       }
     }
     case 'planar': {
@@ -204,6 +246,17 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
             pr[x] = (crp[c]! - cCentre) / cSpan
           }
           fillRgbFromYcc(o)
+        },
+        chromaShift: shift as 0 | 1,
+        readYcc(row, y, pb, pr) {
+          const yo = row * width
+          const co = row * cw
+          const inv = 1 / div
+          for (let x = 0; x < width; x++) y[x] = yp[yo + x]! * inv
+          for (let c = 0; c < cw; c++) {
+            pb[c] = (cbp[co + c]! - cCentre) / cSpan
+            pr[c] = (crp[co + c]! - cCentre) / cSpan
+          }
         },
       }
     }

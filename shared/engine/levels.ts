@@ -1,5 +1,7 @@
-// Level distributions: bins centred on multiples of a quarter code, wide enough for the
-// composite extremes of any legal or illegal Y'CbCr (Y ± 219·C stays within −190…+445).
+// Level distributions: bins centred on multiples of a quarter code. The span −256…+512 holds
+// every level an accepted input can reach: luma 0…256, composite Y ± 219·C with C ≤ 0.97 for
+// any 10-bit Cb/Cr under either matrix (−213…+469), decoded R'G'B' of illegal Y'CbCr
+// (Y' + 1.8556·Pb: −215…+472), and 16-bit studio-range R'G'B' (0…256).
 export const LEVEL_MIN = -256
 export const LEVEL_STEP = 0.25
 export const LEVEL_BINS = 3072

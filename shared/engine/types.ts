@@ -98,6 +98,10 @@ export interface LevelDistributions {
   compMin: Uint32Array
   rgbMax: Uint32Array
   rgbMin: Uint32Array
+  /** Each of R', G', B' on the same code scale (16 = 0, 235 = 1). */
+  r: Uint32Array
+  g: Uint32Array
+  b: Uint32Array
 }
 
 export interface Histograms {
@@ -117,7 +121,7 @@ export interface Histograms {
 export interface WaveformDensity {
   columns: number
   rows: number
-  /** Vertical axis in IRE (7.5 setup): row 0 is irBottom, row rows-1 reaches ireTop. */
+  /** Vertical axis in IRE (7.5 setup): row 0 is ireBottom, row rows−1 reaches ireTop; row-major, rows × columns. */
   ireBottom: number
   ireTop: number
   /** Source columns folded into one density column. */

@@ -1,5 +1,6 @@
 import { readFile } from 'node:fs/promises'
 import sharp from 'sharp'
+import type { Metadata } from 'sharp'
 import { v210Stride } from '../../shared/engine/decode'
 import type { FrameInput, SourceRange } from '../../shared/engine/types'
 
@@ -56,7 +57,7 @@ export function decodeRaw(bytes: Uint8Array, kind: RawKind, width: number | unde
 
 export async function decodeStill(bytes: Uint8Array, range: SourceRange, maxPixels = MAX_INPUT_PIXELS): Promise<FrameInput> {
   const open = () => sharp(bytes, { limitInputPixels: maxPixels, failOn: 'error' })
-  let meta: sharp.Metadata
+  let meta: Metadata
   try {
     meta = await open().metadata()
   }

@@ -1,0 +1,153 @@
+// npm run bench — the measurement engine against ffmpeg (one thread) on the same frames.
+// Prints ms per frame for both and the ratio; the target for 1080p is Linewise ≤ 0.25 ×
+// ffmpeg's time for signalstats + waveform + vectorscope. Also prints what analysing one
+// frame allocates against the frame's raw size (target ≤ about 3 ×). Not a test: numbers
+// vary with the machine and its load.
+import { spawnSync } from 'node:child_process'
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import v8 from 'node:v8'
+import vm from 'node:vm'
+import { analyseFrame, ENGINE_VERSION } from '../../shared/engine/index'
+import type { FrameAnalysis, FrameInput } from '../../shared/engine/index'
+
+v8.setFlagsFromString('--expose-gc')
+const gc = vm.runInNewContext('gc') as () => void
+
+const FFMPEG = process.env.FFMPEG ?? 'ffmpeg'
+const ONE_THREAD = ['-threads', '1', '-filter_threads', '1', '-filter_complex_threads', '1']
+const dir = mkdtempSync(join(tmpdir(), 'linewise-bench-'))
+
+function ffmpeg(args: string[]): { stdout: Buffer, stderr: string } {
+  const r = spawnSync(FFMPEG, ['-hide_banner', '-nostdin', ...ONE_THREAD, ...args], { maxBuffer: 512 * 1024 * 1024 })
+  if (r.error) throw new Error(`cannot run ${FFMPEG}: ${r.error.message}`)
+  if (r.status !== 0) throw new Error(`ffmpeg failed: ${r.stderr.toString()}`)
+  return { stdout: r.stdout, stderr: r.stderr.toString() }
+}
+
+/**
+ * ffmpeg's own CPU time (-benchmark utime + stime), in ms. CPU time rather than wall time on
+ * both sides: on a shared machine wall time mostly measures the neighbours.
+ */
+function ffmpegCpuMs(args: string[]): number {
+  const { stderr } = ffmpeg(['-benchmark', '-nostats', '-v', 'info', ...args])
+  const m = /utime=([\d.]+)s stime=([\d.]+)s/.exec(stderr)
+  if (!m) throw new Error(`no -benchmark figure in:\n${stderr}`)
+  return (Number(m[1]) + Number(m[2])) * 1000
+}
+
+interface Case {
+  label: string
+  width: number
+  height: number
+  ffPixFmt: string
+  rawFile: string
+  rawBytes: number
+  input: FrameInput
+}
+
+function makeCase(width: number, height: number, kind: 'rgb8' | 'yuv10'): Case {
+  const source = `testsrc2=s=${width}x${height}`
+  if (kind === 'rgb8') {
+    const raw = ffmpeg(['-v', 'error', '-f', 'lavfi', '-i', source, '-frames:v', '1', '-f', 'rawvideo', '-pix_fmt', 'rgb24', '-']).stdout
+    const rawFile = join(dir, `rgb-${width}.raw`)
+    writeFileSync(rawFile, raw)
+    return {
+      label: `${width}×${height} 8-bit RGB`, width, height, ffPixFmt: 'rgb24', rawFile, rawBytes: raw.length,
+      input: { kind: 'rgb', data: new Uint8Array(raw.buffer, raw.byteOffset, raw.length), width, height, channels: 3, bitDepth: 8, range: 'full' },
+    }
+  }
+  const planar = ffmpeg(['-v', 'error', '-f', 'lavfi', '-i', source, '-frames:v', '1', '-f', 'rawvideo', '-pix_fmt', 'yuv422p10le', '-']).stdout
+  const rawFile = join(dir, `yuv10-${width}.raw`)
+  writeFileSync(rawFile, planar)
+  // The engine reads the same picture as a v210 capture, the form 10-bit frames arrive in.
+  const v210 = ffmpeg(['-v', 'error', '-f', 'lavfi', '-i', source, '-frames:v', '1', '-c:v', 'v210', '-f', 'rawvideo', '-']).stdout
+  return {
+    label: `${width}×${height} 10-bit 4:2:2`, width, height, ffPixFmt: 'yuv422p10le', rawFile, rawBytes: v210.length,
+    input: { kind: 'v210', data: new Uint8Array(v210.buffer, v210.byteOffset, v210.length), width, height },
+  }
+}
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b)
+  return s[Math.floor(s.length / 2)]!
+}
+
+function timeEngine(input: FrameInput, keepDensities: boolean, runs: number): number {
+  for (let i = 0; i < 3; i++) analyseFrame(input, { keepDensities })
+  const times: number[] = []
+  for (let i = 0; i < runs; i++) {
+    const t0 = process.cpuUsage()
+    analyseFrame(input, { keepDensities })
+    const d = process.cpuUsage(t0)
+    times.push((d.user + d.system) / 1000)
+  }
+  return median(times)
+}
+
+function timeFfmpeg(c: Case, frames: number): { perFrame: number, withRead: number } {
+  const input = ['-stream_loop', String(frames - 1), '-f', 'rawvideo', '-pix_fmt', c.ffPixFmt, '-s', `${c.width}x${c.height}`, '-i', c.rawFile]
+  // R'G'B' goes through swscale to Y'CbCr first, as the engine converts it too.
+  const head = c.ffPixFmt === 'rgb24' ? '[0:v]format=yuv444p,' : '[0:v]'
+  const graph = `${head}split=3[a][b][c];[a]signalstats[s];[b]waveform[w];[c]vectorscope[v]`
+  const full = ffmpegCpuMs([...input, '-filter_complex', graph, '-map', '[s]', '-f', 'null', '-', '-map', '[w]', '-f', 'null', '-', '-map', '[v]', '-f', 'null', '-'])
+  // Reading and looping the raw file alone, to take ffmpeg's I/O out of the comparison.
+  const read = ffmpegCpuMs([...input, '-f', 'null', '-'])
+  return { perFrame: Math.max(0, full - read) / frames, withRead: full / frames }
+}
+
+function typedBytes(a: FrameAnalysis): number {
+  let s = 0
+  const h = a.histograms
+  for (const d of [h.y, h.cb, h.cr, h.r, h.g, h.b, h.levels.luma, h.levels.compMax, h.levels.compMin, h.levels.rgbMax, h.levels.rgbMin]) s += d.byteLength
+  if (a.waveform) for (const d of [a.waveform.luma, a.waveform.flat, a.waveform.rgb.r, a.waveform.rgb.g, a.waveform.rgb.b]) s += d.byteLength
+  if (a.vectorscope) s += a.vectorscope.data.byteLength
+  return s
+}
+
+function allocation(input: FrameInput): { retained: number, transient: number, arrays: number } {
+  gc()
+  const m0 = process.memoryUsage()
+  const a = analyseFrame(input, { keepDensities: true })
+  const m1 = process.memoryUsage()
+  gc()
+  const m2 = process.memoryUsage()
+  const total = (m: NodeJS.MemoryUsage) => m.heapUsed + m.arrayBuffers
+  const res = { transient: total(m1) - total(m0), retained: total(m2) - total(m0), arrays: typedBytes(a) }
+  void a.width
+  return res
+}
+
+const mb = (b: number) => `${(b / 1048576).toFixed(2)} MB`
+const pad = (s: string, n: number) => s.padEnd(n)
+
+function main(): void {
+  const version = ffmpeg(['-version']).stdout.toString().split('\n')[0]
+  console.log(`Linewise engine ${ENGINE_VERSION} on Node ${process.version}; ${version}`)
+  console.log('CPU ms per frame. ffmpeg runs one thread: signalstats + waveform + vectorscope, minus its own raw-read time.')
+  console.log('Linewise: analyseFrame with densities (waveform luma/flat/RGB + vectorscope) and without.\n')
+  console.log(`${pad('frame', 26)}${pad('Linewise full', 15)}${pad('stats only', 12)}${pad('ffmpeg', 12)}${pad('ffmpeg+read', 13)}ratio (full / ffmpeg)`)
+  const cases = [makeCase(720, 486, 'rgb8'), makeCase(720, 486, 'yuv10'), makeCase(1920, 1080, 'rgb8'), makeCase(1920, 1080, 'yuv10')]
+  for (const c of cases) {
+    const hd = c.width > 1000
+    const full = timeEngine(c.input, true, hd ? 15 : 30)
+    const stats = timeEngine(c.input, false, hd ? 15 : 30)
+    const f = timeFfmpeg(c, hd ? 30 : 60)
+    const ratio = full / f.perFrame
+    console.log(`${pad(c.label, 26)}${pad(`${full.toFixed(1)} ms`, 15)}${pad(`${stats.toFixed(1)} ms`, 12)}${pad(`${f.perFrame.toFixed(1)} ms`, 12)}${pad(`${f.withRead.toFixed(1)} ms`, 13)}${ratio.toFixed(2)}${hd ? (ratio <= 0.25 ? '  (target ≤ 0.25 met)' : '  (target ≤ 0.25 NOT met)') : ''}`)
+  }
+  console.log('\nallocation of one analysis (with densities):')
+  for (const c of cases.filter(k => k.width > 1000)) {
+    const a = allocation(c.input)
+    const worst = Math.max(a.transient, a.retained, a.arrays)
+    console.log(`${pad(c.label, 26)}raw ${mb(c.rawBytes)}; result arrays ${mb(a.arrays)}; heap+buffers grown ${mb(a.transient)} during, ${mb(a.retained)} kept → ${(worst / c.rawBytes).toFixed(2)} × raw${worst <= 3 * c.rawBytes ? '  (target ≤ 3 × met)' : '  (target ≤ 3 × NOT met)'}`)
+  }
+}
+
+try {
+  main()
+}
+finally {
+  rmSync(dir, { recursive: true, force: true })
+}
