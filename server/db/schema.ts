@@ -4,6 +4,7 @@ import {
 } from 'drizzle-orm/mysql-core'
 import { ROLES } from '../../shared/utils/roles'
 import { FRAME_FORMATS, FRAME_STATUSES } from '../../shared/utils/uploads'
+import { DECISIONS } from '../../shared/utils/decisions'
 
 // MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
 const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
@@ -90,6 +91,9 @@ export const reels = mysqlTable('reels', {
   matrix: mysqlEnum('matrix', ['601', '709']).notNull().default('601'),
   /** Next frame index; taken under a row lock so concurrent uploads get distinct indexes. */
   nextSeq: int('next_seq').notNull().default(1),
+  /** Sign-off: who and when; while set, the reel is read-only until an owner reopens it. */
+  signedAt: datetime('signed_at', { mode: 'date', fsp: 3 }),
+  signedBy: ref('signed_by').references(() => users.id, { onDelete: 'set null' }),
   createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
 }, (t) => [index('reels_production_idx').on(t.productionId), index('reels_team_idx').on(t.teamId)])
@@ -193,3 +197,14 @@ export const framesRelations = relations(frames, ({ one }) => ({
   reel: one(reels, { fields: [frames.reelId], references: [reels.id] }),
   analysis: one(analyses, { fields: [frames.id], references: [analyses.frameId] }),
 }))
+
+/** A reviewer's decision on a frame; one current decision per frame, every change in the audit log. */
+export const decisions = mysqlTable('decisions', {
+  id: id(),
+  frameId: ref('frame_id').notNull().references(() => frames.id, { onDelete: 'cascade' }),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  decision: mysqlEnum('decision', DECISIONS).notNull(),
+  note: varchar('note', { length: 1000 }).notNull().default(''),
+  decidedBy: ref('decided_by').references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('decisions_frame_uq').on(t.frameId), index('decisions_team_idx').on(t.teamId)])

@@ -29,3 +29,12 @@ export async function requireFrame(event: H3Event, frameId: number, permission: 
   assertCan(row.role, permission)
   return { user, role: row.role as Role, frame: row.frame }
 }
+
+/** Refuses changes to a reel that has been signed off (read-only until an owner reopens it). */
+export async function assertReelOpen(reelId: number) {
+  const [reel] = await useDb().select().from(tables.reels).where(eq(tables.reels.id, reelId)).limit(1)
+  if (!reel) throw createError({ statusCode: 404, statusMessage: 'Not found' })
+  if (reel.signedAt) {
+    throw createError({ statusCode: 409, statusMessage: 'This reel is signed off and read-only; an owner can reopen it' })
+  }
+}

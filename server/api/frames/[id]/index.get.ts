@@ -1,18 +1,33 @@
-import { eq } from 'drizzle-orm'
+import { and, asc, desc, eq, gt, lt } from 'drizzle-orm'
 import { IdParams } from '../../../../shared/utils/validation'
 
 /**
  * One frame: its record and, once analysed, the analysis with the same field names as
- * `npm run analyse -- --json`, plus the histograms and the URLs of its images.
+ * `npm run analyse -- --json`, plus the histograms, the URLs of its images, the current
+ * decision, its neighbours in the reel and where it belongs.
  */
 export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, IdParams.parse)
   const { frame, role } = await requireFrame(event, id, 'view')
-  const [a] = await useDb().select().from(tables.analyses).where(eq(tables.analyses.frameId, frame.id)).limit(1)
+  const db = useDb()
+  const [a] = await db.select().from(tables.analyses).where(eq(tables.analyses.frameId, frame.id)).limit(1)
+  const [d] = await db.select({ decision: tables.decisions, by: { id: tables.users.id, name: tables.users.name } }).from(tables.decisions)
+    .leftJoin(tables.users, eq(tables.users.id, tables.decisions.decidedBy)).where(eq(tables.decisions.frameId, frame.id)).limit(1)
+  const [prev] = await db.select({ id: tables.frames.id }).from(tables.frames)
+    .where(and(eq(tables.frames.reelId, frame.reelId), lt(tables.frames.seq, frame.seq))).orderBy(desc(tables.frames.seq)).limit(1)
+  const [next] = await db.select({ id: tables.frames.id }).from(tables.frames)
+    .where(and(eq(tables.frames.reelId, frame.reelId), gt(tables.frames.seq, frame.seq))).orderBy(asc(tables.frames.seq)).limit(1)
+  const [reel] = await db.select({
+    id: tables.reels.id, name: tables.reels.name, sourceLabel: tables.reels.sourceLabel, sourceRange: tables.reels.sourceRange,
+    matrix: tables.reels.matrix, signedAt: tables.reels.signedAt, productionId: tables.productions.id, productionName: tables.productions.name,
+  }).from(tables.reels).innerJoin(tables.productions, eq(tables.productions.id, tables.reels.productionId)).where(eq(tables.reels.id, frame.reelId))
   const { objectKey: _k, sha256: _s, ...pub } = frame
   return {
     frame: pub,
     role,
+    reel,
+    neighbours: { prevId: prev?.id ?? null, nextId: next?.id ?? null },
+    decision: d ? { decision: d.decision.decision, note: d.decision.note, decidedBy: d.by?.id ? d.by : null, decidedAt: d.decision.updatedAt } : null,
     analysis: a
       ? {
           ...(a.result as object),

@@ -17,6 +17,7 @@ const Query = z.object({
 export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, IdParams.parse)
   const { reel, user } = await requireReel(event, id, 'upload')
+  await assertReelOpen(reel.id)
   const q = await getValidatedQuery(event, Query.parse)
   const length = Number(getRequestHeader(event, 'content-length') ?? 0)
   if (length > UPLOAD_LIMITS.maxBytes * 4) {

@@ -17,7 +17,11 @@ export default defineEventHandler(async (event) => {
     pass: sql<number>`coalesce(sum(${tables.analyses.verdict} = 'pass'), 0)`,
     caution: sql<number>`coalesce(sum(${tables.analyses.verdict} = 'caution'), 0)`,
     fail: sql<number>`coalesce(sum(${tables.analyses.verdict} = 'fail'), 0)`,
-  }).from(tables.frames).leftJoin(tables.analyses, eq(tables.analyses.frameId, tables.frames.id)).where(eq(tables.frames.reelId, reel.id))
+    accepted: sql<number>`coalesce(sum(${tables.decisions.decision} = 'accepted'), 0)`,
+    rejected: sql<number>`coalesce(sum(${tables.decisions.decision} = 'rejected'), 0)`,
+    waived: sql<number>`coalesce(sum(${tables.decisions.decision} = 'waived'), 0)`,
+  }).from(tables.frames).leftJoin(tables.analyses, eq(tables.analyses.frameId, tables.frames.id))
+    .leftJoin(tables.decisions, eq(tables.decisions.frameId, tables.frames.id)).where(eq(tables.frames.reelId, reel.id))
   const { spec, version } = await specForProduction(db, reel.productionId)
   const n = (v: unknown) => Number(v ?? 0)
   return {

@@ -13,6 +13,7 @@ const URL_MINUTES = 60
 export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, IdParams.parse)
   const { reel, user } = await requireReel(event, id, 'upload')
+  await assertReelOpen(reel.id)
   const { files } = await readValidatedBody(event, PresignBody.parse)
   const storage = useStorageS3()
   const db = useDb()

@@ -12,6 +12,7 @@ const Params = z.object({ id: IdSchema, uploadId: IdSchema })
 export default defineEventHandler(async (event) => {
   const { id, uploadId } = await getValidatedRouterParams(event, Params.parse)
   const { reel, user } = await requireReel(event, id, 'upload')
+  await assertReelOpen(reel.id)
   const { parts } = await readValidatedBody(event, CompleteUploadBody.parse)
   const db = useDb()
   const [up] = await db.select().from(tables.uploads)
