@@ -1,4 +1,4 @@
-import { makeRowSource } from './decode'
+import { EngineInputError, makeRowSource, STRIPE_ALIGN } from './decode'
 import { MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre, ireToCode8 } from './scales'
 import { builtinSpec, DEFAULT_SPEC_NAME } from './specs'
@@ -26,6 +26,9 @@ const LOW_BAND = 16 - LEVEL_STEP / 2
 const HIGH_LUMA = 235 + LEVEL_STEP / 2
 const HIGH_CHROMA = 240 + LEVEL_STEP / 2
 
+/** Stripe width for the density pass: 48 waveform columns at 1080p, ≈ 70 kB of each density. */
+const DENSITY_STRIPE = 2 * STRIPE_ALIGN
+
 // Coarse Cb/Cr histograms are filled with a margin of 128 codes each side and folded into
 // the published 0..bins−1 range at the end, so the hot loop needs no clamping.
 const COARSE_PAD = 128
@@ -33,7 +36,7 @@ const COARSE_PAD = 128
 export function resolveMatrix(m: string | undefined): MatrixName {
   if (m === undefined || m === '601') return '601'
   if (m === '709') return '709'
-  throw new Error(`unknown matrix "${m}" (use 601 or 709)`)
+  throw new EngineInputError(`unknown matrix "${m}" (use 601 or 709)`)
 }
 
 interface Totals {
@@ -114,10 +117,22 @@ export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): Fram
     gR: -219 * m.kr * m.crDiv / m.kg, gB: -219 * m.kb * m.cbDiv / m.kg,
     cbOff: COARSE_PAD * hs + 0.5, hs,
   }
-  for (let row = 0; row < height; row++) {
-    src.readYcc(row, yRow, pbRow, prRow)
-    if (dens) rowPassWithDensities(yRow, pbRow, prRow, width, src.chromaShift, coef, cbHist, crHist, levels, t, dens)
-    else rowPass(yRow, pbRow, prRow, width, src.chromaShift, coef, cbHist, crHist, levels, t)
+  if (dens) {
+    // In vertical stripes, so the part of the waveform densities a stripe touches stays in
+    // cache: whole rows would spread six increments per pixel over megabytes.
+    for (let x0 = 0; x0 < width; x0 += DENSITY_STRIPE) {
+      const x1 = Math.min(width, x0 + DENSITY_STRIPE)
+      for (let row = 0; row < height; row++) {
+        src.readYcc(row, yRow, pbRow, prRow, x0, x1)
+        rowPassWithDensities(yRow, pbRow, prRow, x0, x1 - x0, src.chromaShift, coef, cbHist, crHist, levels, t, dens)
+      }
+    }
+  }
+  else {
+    for (let row = 0; row < height; row++) {
+      src.readYcc(row, yRow, pbRow, prRow, 0, width)
+      rowPass(yRow, pbRow, prRow, width, src.chromaShift, coef, cbHist, crHist, levels, t)
+    }
   }
 
   const fold = (h: Uint32Array): Uint32Array => {
@@ -280,7 +295,7 @@ function rowPass(
 }
 
 function rowPassWithDensities(
-  Y: Float64Array, PB: Float64Array, PR: Float64Array, width: number, shift: number, k: Coef,
+  Y: Float64Array, PB: Float64Array, PR: Float64Array, x0: number, width: number, shift: number, k: Coef,
   cbHist: Uint32Array, crHist: Uint32Array, lv: LevelDistributions, t: Totals, d: Densities,
 ): void {
   const { uK, vK, rK, bK, gR, gB, cbOff, hs } = k
@@ -319,7 +334,7 @@ function rowPassWithDensities(
       vr = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
       vector[vr * VECTORSCOPE_SIZE + vc]! += cnt
     }
-    const col = colOf[x]!
+    const col = colOf[x0 + x]!
     const y = Y[x]!
     sumY += y
     if (y < yMin) yMin = y

@@ -43,10 +43,11 @@ export interface RowSource {
   /** Chroma samples per pixel as a shift: 0 for 4:4:4 and R'G'B', 1 for 4:2:2. */
   chromaShift: 0 | 1
   /**
-   * The fast path of the analysis: luma codes per pixel into `y`, Pb/Pr at the source's own
-   * chroma resolution into `pb`/`pr` (so 4:2:2 chroma work is done once per pair).
+   * The fast path of the analysis: luma codes of pixels x0…x1−1 into `y[0…]`, Pb/Pr at the
+   * source's own chroma resolution into `pb`/`pr` (so 4:2:2 chroma work is done once per
+   * pair). x0 must be a multiple of STRIPE_ALIGN.
    */
-  readYcc: (row: number, y: Float64Array, pb: Float64Array, pr: Float64Array) => void
+  readYcc: (row: number, y: Float64Array, pb: Float64Array, pr: Float64Array, x0: number, x1: number) => void
 }
 
 function checkDims(width: number, height: number): void {
@@ -64,6 +65,9 @@ function need(actual: number, expected: number, what: string): void {
 export function v210Stride(width: number): number {
   return Math.ceil(width / 48) * 128
 }
+
+/** Stripes of a row start on multiples of this: whole v210 blocks (48 pixels, 128 bytes). */
+export const STRIPE_ALIGN = 48
 
 export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource {
   checkDims(input.width, input.height)
@@ -124,9 +128,9 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
           }
         },
         chromaShift: 0,
-        readYcc(row, y, pb, pr) {
-          let i = row * width * channels
-          for (let x = 0; x < width; x++, i += channels) {
+        readYcc(row, y, pb, pr, x0, x1) {
+          let i = (row * width + x0) * channels
+          for (let x = 0, n = x1 - x0; x < n; x++, i += channels) {
             const rr = data[i]! * scale + offset
             const gg = data[i + 1]! * scale + offset
             const bb = data[i + 2]! * scale + offset
@@ -158,9 +162,9 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
           fillRgbFromYcc(o)
         },
         chromaShift: 1,
-        readYcc(row, y, pb, pr) {
-          let i = row * width * 2
-          for (let x = 0, c = 0; x < width; x += 2, c++, i += 4) {
+        readYcc(row, y, pb, pr, x0, x1) {
+          let i = (row * width + x0) * 2
+          for (let x = 0, c = 0, n = x1 - x0; x < n; x += 2, c++, i += 4) {
             pb[c] = (data[i]! - 128) / 224
             y[x] = data[i + 1]!
             pr[c] = (data[i + 2]! - 128) / 224
@@ -182,7 +186,7 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
       return {
         ...ycc10Common(width, height),
         readRow(row, o) {
-          unpack(row)
+          unpack(row, 0, groups)
           const { y, pb, pr } = o
           for (let x = 0; x < width; x += 2) {
             const c = x >> 1
@@ -196,18 +200,18 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
           fillRgbFromYcc(o)
         },
         chromaShift: 1,
-        readYcc(row, y, pb, pr) {
-          unpack(row)
-          for (let x = 0; x < width; x++) y[x] = ys[x]! * 0.25
-          for (let c = 0; c < width >> 1; c++) {
-            pb[c] = (cbs[c]! - 512) / 896
-            pr[c] = (crs[c]! - 512) / 896
+        readYcc(row, y, pb, pr, x0, x1) {
+          unpack(row, x0 / 6, Math.ceil(x1 / 6))
+          for (let x = 0, n = x1 - x0; x < n; x++) y[x] = ys[x0 + x]! * 0.25
+          for (let c = 0, c0 = x0 >> 1, n = (x1 - x0) >> 1; c < n; c++) {
+            pb[c] = (cbs[c0 + c]! - 512) / 896
+            pr[c] = (crs[c0 + c]! - 512) / 896
           }
         },
       }
-      function unpack(row: number): void {
-        let i = row * stride
-        for (let gI = 0; gI < groups; gI++, i += 16) {
+      function unpack(row: number, g0: number, g1: number): void {
+        let i = row * stride + g0 * 16
+        for (let gI = g0; gI < g1; gI++, i += 16) {
           const w0 = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16) | (data[i + 3]! << 24)
           const w1 = data[i + 4]! | (data[i + 5]! << 8) | (data[i + 6]! << 16) | (data[i + 7]! << 24)
           const w2 = data[i + 8]! | (data[i + 9]! << 8) | (data[i + 10]! << 16) | (data[i + 11]! << 24)
@@ -248,12 +252,12 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
           fillRgbFromYcc(o)
         },
         chromaShift: shift as 0 | 1,
-        readYcc(row, y, pb, pr) {
-          const yo = row * width
-          const co = row * cw
+        readYcc(row, y, pb, pr, x0, x1) {
+          const yo = row * width + x0
+          const co = row * cw + (x0 >> shift)
           const inv = 1 / div
-          for (let x = 0; x < width; x++) y[x] = yp[yo + x]! * inv
-          for (let c = 0; c < cw; c++) {
+          for (let x = 0, n = x1 - x0; x < n; x++) y[x] = yp[yo + x]! * inv
+          for (let c = 0, n = ((x1 - x0) + shift) >> shift; c < n; c++) {
             pb[c] = (cbp[co + c]! - cCentre) / cSpan
             pr[c] = (crp[co + c]! - cCentre) / cSpan
           }

@@ -61,9 +61,58 @@ describe('properties', () => {
       const a = analyseFrame(input)
       const n = input.width * input.height
       const h = a.histograms
-      for (const d of [h.y, h.cb, h.cr, h.r, h.g, h.b, h.levels.luma, h.levels.compMax, h.levels.compMin, h.levels.rgbMax, h.levels.rgbMin]) expect(sum(d)).toBe(n)
+      for (const d of [h.y, h.cb, h.cr, h.r, h.g, h.b, h.levels.luma, h.levels.compMax, h.levels.compMin, h.levels.rgbMax, h.levels.rgbMin, h.levels.r, h.levels.g, h.levels.b]) expect(sum(d)).toBe(n)
       expect(h.bins).toBe(a.bitDepth === 8 ? 256 : 1024)
     }), { numRuns: 80 })
+  })
+
+  it('histograms count the source codes exactly: R, G, B of 8-bit R\'G\'B\', Y, Cb, Cr of Y\'CbCr', () => {
+    fc.assert(fc.property(fc.oneof(rgbFrame, yccFrame), (input) => {
+      const a = analyseFrame(input)
+      const h = a.histograms
+      const count = (vals: ArrayLike<number>, bins: number, step: number, offset: number, per = 1) => {
+        const out = new Array<number>(bins).fill(0)
+        for (let i = 0; i < vals.length; i += step) out[vals[i + offset]!]! += per
+        return out
+      }
+      if (input.kind === 'rgb' && input.bitDepth === 8 && input.range === 'full') {
+        expect(Array.from(h.r)).toEqual(count(input.data, 256, input.channels, 0))
+        expect(Array.from(h.g)).toEqual(count(input.data, 256, input.channels, 1))
+        expect(Array.from(h.b)).toEqual(count(input.data, 256, input.channels, 2))
+      }
+      if (input.kind === 'planar') {
+        const bins = input.bitDepth === 8 ? 256 : 1024
+        expect(Array.from(h.y)).toEqual(count(input.y, bins, 1, 0))
+        // 4:2:2: each chroma sample stands for two pixels (widths here are even).
+        expect(Array.from(h.cb)).toEqual(count(input.cb, bins, 1, 0, 2))
+        expect(Array.from(h.cr)).toEqual(count(input.cr, bins, 1, 0, 2))
+      }
+    }), { numRuns: 80 })
+  })
+
+  it('the density pass (in stripes) measures the same as the plain pass, and its densities hold every pixel', () => {
+    const wide = fc.record({ w: fc.integer({ min: 40, max: 160 }).map(n => n * 2), h: fc.integer({ min: 1, max: 4 }), seed: fc.integer() })
+      .map(({ w, h, seed }): FrameInput => {
+        const cw = w / 2
+        let s = seed >>> 0
+        const next = () => (s = (Math.imul(s, 1664525) + 1013904223) >>> 0) >>> 22
+        const y = new Uint16Array(w * h).map(() => next())
+        const cb = new Uint16Array(cw * h).map(() => next())
+        const cr = new Uint16Array(cw * h).map(() => next())
+        return { kind: 'planar', y, cb, cr, width: w, height: h, bitDepth: 10, subsampling: '422' }
+      })
+    fc.assert(fc.property(fc.oneof(wide, rgbFrame), (input) => {
+      const plain = analyseFrame(input)
+      const dense = analyseFrame(input, { keepDensities: true })
+      const { histograms: h1, waveform, vectorscope, ...rest1 } = dense
+      const { histograms: h0, ...rest0 } = plain
+      expect(rest1).toEqual(rest0)
+      expect(h1).toEqual(h0)
+      const n = input.width * input.height
+      expect(sum(waveform!.luma)).toBe(n)
+      expect(sum(waveform!.flat)).toBe(2 * n)
+      for (const d of [waveform!.rgb.r, waveform!.rgb.g, waveform!.rgb.b, vectorscope!.data]) expect(sum(d)).toBe(n)
+    }), { numRuns: 25 })
   })
 
   it('statistics are ordered: min ≤ p1 ≤ p10 ≤ p50 ≤ p90 ≤ p99 ≤ max, mean within, shares in 0..1', () => {
