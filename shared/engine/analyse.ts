@@ -16,9 +16,11 @@ export const COMPOSITE_OUT_HIGH_IRE = 120
 /**
  * Rounding three 8-bit codes moves a decoded R', G' or B' by up to 1.41 codes (B' under BT.709:
  * 0.5 + 1.8556·0.5·219/224), so legal bars coded as Y'CbCr can decode a little outside 0..1.
- * The gamut share only counts what lies beyond that.
+ * For Y'CbCr sources the gamut share only counts what lies beyond that; R'G'B' sources carry
+ * their own codes and get only the level grid's half step.
  */
 export const GAMUT_MARGIN_CODE8 = 1.5
+const GAMUT_MARGIN_RGB_CODE8 = LEVEL_STEP / 2
 
 // Studio-range test on the same quarter-code grid as the level distributions, so that
 // shares.studioOut agrees with what a spec on those distributions would count.
@@ -116,6 +118,8 @@ export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): Fram
     // G' − Y' = −(Kr(R'−Y') + Kb(B'−Y'))/Kg
     gR: -219 * m.kr * m.crDiv / m.kg, gB: -219 * m.kb * m.cbDiv / m.kg,
     cbOff: COARSE_PAD * hs + 0.5, hs,
+    gamHi: 235 + (input.kind === 'rgb' ? GAMUT_MARGIN_RGB_CODE8 : GAMUT_MARGIN_CODE8),
+    gamLo: 16 - (input.kind === 'rgb' ? GAMUT_MARGIN_RGB_CODE8 : GAMUT_MARGIN_CODE8),
   }
   if (dens) {
     // In vertical stripes, so the part of the waveform densities a stripe touches stays in
@@ -214,7 +218,7 @@ function coarseFromLevels(d: Uint32Array, bins: number, scale: number, offset: n
   return out
 }
 
-interface Coef { uK: number, vK: number, rK: number, bK: number, gR: number, gB: number, cbOff: number, hs: number }
+interface Coef { uK: number, vK: number, rK: number, bK: number, gR: number, gB: number, cbOff: number, hs: number, gamHi: number, gamLo: number }
 
 // The level-bin index of a code: centred quarter-code bins from LEVEL_MIN. The span of
 // LEVEL_MIN.. is wide enough for every level any accepted input can produce (levels.ts), so
@@ -223,8 +227,6 @@ const LV_OFF = -LEVEL_MIN / LEVEL_STEP + 0.5
 const LV_SCALE = 1 / LEVEL_STEP
 const COMP_HI = ireToCode8(COMPOSITE_OUT_HIGH_IRE)
 const COMP_LO = ireToCode8(COMPOSITE_OUT_LOW_IRE)
-const GAM_HI = 235 + GAMUT_MARGIN_CODE8
-const GAM_LO = 16 - GAMUT_MARGIN_CODE8
 const VS_SCALE = VECTORSCOPE_SIZE / (2 * VECTORSCOPE_EXTENT)
 const VS_LAST = VECTORSCOPE_SIZE - 1
 
@@ -239,7 +241,7 @@ function rowPass(
   Y: Float64Array, PB: Float64Array, PR: Float64Array, width: number, shift: number, k: Coef,
   cbHist: Uint32Array, crHist: Uint32Array, lv: LevelDistributions, t: Totals,
 ): void {
-  const { uK, vK, rK, bK, gR, gB, cbOff, hs } = k
+  const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo } = k
   const dl = lv.luma; const dhi = lv.compMax; const dlo = lv.compMin; const dmx = lv.rgbMax; const dmn = lv.rgbMin
   const dr = lv.r; const dg = lv.g; const db = lv.b
   let sumY = 0; let yMin = t.yMin; let yMax = t.yMax; let compMin = t.compMin; let compMax = t.compMax
@@ -286,7 +288,7 @@ function rowPass(
     dg[((y + go) * LV_SCALE + LV_OFF) | 0]!++
     db[((y + bo) * LV_SCALE + LV_OFF) | 0]!++
     if (hi > COMP_HI || lo < COMP_LO) compOut++
-    if (mx > GAM_HI || mn < GAM_LO) gamOut++
+    if (mx > gamHi || mn < gamLo) gamOut++
     if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut++
   }
   t.sumY += sumY; t.yMin = yMin; t.yMax = yMax; t.compMin = compMin; t.compMax = compMax
@@ -298,7 +300,7 @@ function rowPassWithDensities(
   Y: Float64Array, PB: Float64Array, PR: Float64Array, x0: number, width: number, shift: number, k: Coef,
   cbHist: Uint32Array, crHist: Uint32Array, lv: LevelDistributions, t: Totals, d: Densities,
 ): void {
-  const { uK, vK, rK, bK, gR, gB, cbOff, hs } = k
+  const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo } = k
   const dl = lv.luma; const dhi = lv.compMax; const dlo = lv.compMin; const dmx = lv.rgbMax; const dmn = lv.rgbMin
   const dr = lv.r; const dg = lv.g; const db = lv.b
   const { colOf, rowOff, luma: wl, flat: wf, r: wr, g: wg, b: wb, vector } = d
@@ -364,7 +366,7 @@ function rowPassWithDensities(
     wg[rowOff[ig]! + col]!++
     wb[rowOff[ib]! + col]!++
     if (hi > COMP_HI || lo < COMP_LO) compOut++
-    if (mx > GAM_HI || mn < GAM_LO) gamOut++
+    if (mx > gamHi || mn < gamLo) gamOut++
     if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut++
   }
   t.sumY += sumY; t.yMin = yMin; t.yMax = yMax; t.compMin = compMin; t.compMax = compMax

@@ -1,7 +1,8 @@
 import { EngineInputError, makeRowBuffers, makeRowSource } from './decode'
 import { resolveMatrix } from './analyse'
 import { barTargets, MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
-import { fromScale } from './scales'
+import { fromScale, ireToCode8 } from './scales'
+import { waveformRow } from './waveform'
 import type { LevelScale } from './scales'
 import type { DeliverySpec } from './specs'
 import type { FrameInput, Histograms, MatrixName, RgbaImage, VectorscopeDensity, WaveformDensity } from './types'
@@ -97,7 +98,8 @@ export function renderWaveform(w: WaveformDensity, mode: WaveformMode = 'luma'):
   const gap = 4
   const width = GUTTER + panes * w.columns + (panes - 1) * gap
   const cv = new Canvas(width, w.rows, PALETTE.background)
-  const rowOf = (ire: number) => w.rows - 1 - Math.floor((ire - w.ireBottom) * w.rows / (w.ireTop - w.ireBottom))
+  // Graticule lines go through the same level-to-row mapping as the trace.
+  const rowOf = (ire: number) => w.rows - 1 - waveformRow(ireToCode8(ire))
   for (const ire of GRATICULE_IRE) {
     const y = rowOf(ire)
     cv.hline(GUTTER, width, y, PALETTE.graticule)
@@ -108,8 +110,9 @@ export function renderWaveform(w: WaveformDensity, mode: WaveformMode = 'luma'):
   cv.hline(GUTTER, width, rowOf(7.5), PALETTE.keyLine, 3)
   cv.text(1, rowOf(7.5) - 2, '7.5', PALETTE.keyLine)
 
-  const perColumn = (w.decimation * totalOf(w.luma)) / (w.columns * w.decimation)
-  const ref = Math.max(2, perColumn / 16)
+  // Full brightness at a sixteenth of a column's pixels in one cell: flat areas saturate,
+  // a lone pixel still shows.
+  const ref = Math.max(2, totalOf(w.luma) / w.columns / 16)
   const layers: Array<{ d: Uint32Array, c: Rgb, pane: number, k: number }> = []
   if (mode === 'luma' || mode === 'both') layers.push({ d: w.luma, c: PALETTE.lumaTrace, pane: 0, k: 1 })
   if (mode === 'flat' || mode === 'both') layers.push({ d: w.flat, c: PALETTE.flatTrace, pane: 0, k: mode === 'both' ? 0.8 : 1 })

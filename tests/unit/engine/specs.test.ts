@@ -119,3 +119,14 @@ describe('verdicts', () => {
     expect(evaluateSpec(a, relaxed).verdict).toBe('fail')
   })
 })
+
+describe('gamut share', () => {
+  it('counts studio-range R\'G\'B\' codes beyond 235 or below 16 (8-bit), and not the rounding of legal Y\'CbCr', () => {
+    // Studio-range R'G'B': code 236 is 100.5 %, beyond the gamut; 235 is white.
+    const data = new Uint8Array([236, 100, 100, 235, 235, 235, 15, 100, 100, 16, 16, 16])
+    const a = analyseFrame({ kind: 'rgb', data, width: 4, height: 1, channels: 3, bitDepth: 8, range: 'studio' })
+    expect(a.shares.gamutOut).toBe(0.5)
+    // 100 % red coded 81/90/240 (REFERENCE.md §3) decodes to B' = −0.0038 through rounding alone.
+    expect(analyseFrame(uyvyRow([[81, 81, 90, 240]], 1)).shares.gamutOut).toBe(0)
+  })
+})
