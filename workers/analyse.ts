@@ -4,9 +4,9 @@
 import { parseArgs } from 'node:util'
 import {
   analyseFrame, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, ENGINE_VERSION, EngineInputError, formatShare,
-  LEVEL_SCALES, linePlot, MV_CONVENTION, SCALE_LABELS, toScale,
+  LEVEL_SCALES, linePlot, MV_CONVENTION, toScale,
 } from '../shared/engine/index'
-import type { FrameAnalysis, LinePlot, MatrixName, SourceRange } from '../shared/engine/index'
+import type { FrameAnalysis, LevelScale, LinePlot, MatrixName, SourceRange } from '../shared/engine/index'
 import { decodeFile, DecodeFileError } from './lib/decode-file'
 import type { RawKind } from './lib/decode-file'
 
@@ -63,13 +63,16 @@ function summary(file: string, a: FrameAnalysis, specName: string, line?: LinePl
   const f = (v: number, d = 1) => v.toFixed(d).padStart(8)
   out.push(`${file}: ${a.width}×${a.height}, ${a.bitDepth}-bit, ${a.range} range, BT.${a.matrix}`)
   out.push('')
-  out.push(`luma          ${['min', 'p1', 'p10', 'p50', 'mean', 'p90', 'p99', 'max'].map(k => k.padStart(8)).join('')}`)
+  const short: Record<LevelScale, string> = {
+    ire: 'IRE (setup)', ire0: 'IRE (no setup)', mv: 'mV component', mvNtsc: 'mV NTSC', pct: '%', code8: '8-bit code', code10: '10-bit code',
+  }
+  out.push(`luma            ${['min', 'p1', 'p10', 'p50', 'mean', 'p90', 'p99', 'max'].map(k => k.padStart(8)).join('')}`)
   for (const s of LEVEL_SCALES) {
     const d = s === 'mv' || s === 'mvNtsc' || s === 'code10' ? 0 : s === 'code8' ? 2 : 1
     const vals = (['min', 'p1', 'p10', 'p50', 'mean', 'p90', 'p99', 'max'] as const).map(k => f(toScale(a.luma[k], s), d))
-    out.push(`  ${SCALE_LABELS[s].padEnd(12).slice(0, 12)}${vals.join('')}`)
+    out.push(`  ${short[s].padEnd(14)}${vals.join('')}`)
   }
-  out.push(`  (mV: ${MV_CONVENTION})`)
+  out.push(`  (mV ${MV_CONVENTION}; mV NTSC = 140 IRE per volt, white 714 mV)`)
   out.push('')
   out.push(`composite     ${f(a.compositeIre.min)} … ${a.compositeIre.max.toFixed(1)} IRE (7.5 setup)`)
   out.push(`chroma        Cb ${a.chroma.cbMin.toFixed(1)}…${a.chroma.cbMax.toFixed(1)}, Cr ${a.chroma.crMin.toFixed(1)}…${a.chroma.crMax.toFixed(1)}, p-p max ${a.chroma.ppMaxIre.toFixed(1)} IRE`)

@@ -159,14 +159,17 @@ export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): Fram
     b: coarseFromLevels(levels.b, bins, src.rgbHistScale / 219, src.rgbHistOffset - 16 * src.rgbHistScale / 219),
     levels,
   }
+  // Percentiles are read at a bin centre, up to an eighth of a code from the level itself:
+  // keep them inside the exact extremes so that min ≤ p1 and p99 ≤ max always hold.
+  const pct = (p: number) => Math.min(t.yMax, Math.max(t.yMin, percentile(levels.luma, n, p)))
   const luma = {
     min: t.yMin,
-    p1: percentile(levels.luma, n, 0.01),
-    p10: percentile(levels.luma, n, 0.10),
-    p50: percentile(levels.luma, n, 0.50),
+    p1: pct(0.01),
+    p10: pct(0.10),
+    p50: pct(0.50),
     mean: t.sumY / n,
-    p90: percentile(levels.luma, n, 0.90),
-    p99: percentile(levels.luma, n, 0.99),
+    p90: pct(0.90),
+    p99: pct(0.99),
     max: t.yMax,
   }
   const base = {
