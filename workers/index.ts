@@ -10,6 +10,7 @@ import { DEFAULT_JOB_OPTIONS, QUEUE_ANALYSE, QUEUE_MAIL, type AnalyseJob, type M
 import { processAnalyse } from './analyse-frame'
 import { workerEnv } from './env'
 import { processMail } from './mail'
+import { startSheetWorker } from './sheet-worker'
 import { sweep } from './sweeper'
 
 const env = workerEnv()
@@ -22,8 +23,10 @@ const storage = new Storage(storageConfigFromEnv())
 const analyseQueue = new Queue<AnalyseJob>(QUEUE_ANALYSE, { connection, defaultJobOptions: DEFAULT_JOB_OPTIONS })
 analyseQueue.on('error', (e) => console.error('[worker] queue', e.message))
 
+const sheets = startSheetWorker(connection, env.databaseUrl)
 const workers = [
   new Worker<MailJob>(QUEUE_MAIL, (job) => processMail(job, transport, env.mailFrom), { connection, concurrency: 4 }),
+  sheets.worker,
   new Worker<AnalyseJob>(QUEUE_ANALYSE, (job) => processAnalyse(job, { db, storage }), { connection, concurrency }),
 ]
 for (const w of workers) {
@@ -35,7 +38,7 @@ const sweepTimer = setInterval(() => {
   sweep(db, analyseQueue).then((n) => { if (n) console.log(`[worker] re-queued ${n} frame(s)`) })
     .catch((e) => console.error('[worker] sweep', (e as Error).message))
 }, 10_000)
-console.log(`[worker] ready: analyse ×${concurrency}, mail ×4`)
+console.log(`[worker] ready: analyse ×${concurrency}, mail ×4, sheet ×1`)
 
 let closing = false
 async function shutdown(signal: string) {
@@ -47,6 +50,7 @@ async function shutdown(signal: string) {
   await analyseQueue.close()
   transport.close()
   await pool.end()
+  await sheets.pool.end()
   await connection.quit().catch(() => {})
   process.exit(0)
 }

@@ -208,3 +208,35 @@ export const decisions = mysqlTable('decisions', {
   decidedBy: ref('decided_by').references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
 }, (t) => [uniqueIndex('decisions_frame_uq').on(t.frameId), index('decisions_team_idx').on(t.teamId)])
+
+export const SHEET_STATUSES = ['pending', 'ready', 'failed'] as const
+
+/**
+ * One sign-off of a reel. The spec is copied as it was at that moment (a later edit of the
+ * team's spec must not rewrite what was signed), with the engine version that measured it.
+ * Reopening marks the row superseded; its sheet stays stored for the record.
+ */
+export const signoffs = mysqlTable('signoffs', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  reelId: ref('reel_id').notNull().references(() => reels.id, { onDelete: 'cascade' }),
+  signedBy: ref('signed_by').references(() => users.id, { onDelete: 'set null' }),
+  /** The signer's name as it was, so the record survives a rename or a removed account. */
+  signerName: varchar('signer_name', { length: 120 }).notNull(),
+  signedAt: datetime('signed_at', { mode: 'date', fsp: 3 }).notNull(),
+  specName: varchar('spec_name', { length: 64 }).notNull(),
+  specTitle: varchar('spec_title', { length: 120 }).notNull(),
+  specVersion: int('spec_version').notNull(),
+  specBody: json('spec_body').notNull(),
+  engineVersion: varchar('engine_version', { length: 32 }).notNull(),
+  sheetStatus: mysqlEnum('sheet_status', SHEET_STATUSES).notNull().default('pending'),
+  sheetError: varchar('sheet_error', { length: 500 }),
+  pdfKey: varchar('pdf_key', { length: 255 }),
+  csvKey: varchar('csv_key', { length: 255 }),
+  /** The summary as printed on the sheet (counts and overall result). */
+  summary: json('summary'),
+  supersededAt: datetime('superseded_at', { mode: 'date', fsp: 3 }),
+  supersededBy: ref('superseded_by').references(() => users.id, { onDelete: 'set null' }),
+  reopenReason: varchar('reopen_reason', { length: 1000 }),
+  ...timestamps,
+}, (t) => [index('signoffs_reel_idx').on(t.reelId, t.signedAt), index('signoffs_team_idx').on(t.teamId)])

@@ -13,7 +13,9 @@ export async function recordDecisions(tx: Tx, args: { teamId: number; frameIds: 
   const frames = await tx.select({ id: t.frames.id, status: t.frames.status, prev: t.decisions.decision, prevNote: t.decisions.note })
     .from(t.frames).leftJoin(t.decisions, eq(t.decisions.frameId, t.frames.id))
     .where(and(eq(t.frames.teamId, args.teamId), inArray(t.frames.id, args.frameIds))).for('update')
-  const ready = frames.filter((f) => f.status === 'done')
+  // A file that never decoded can only be rejected: there is no measurement to accept or waive,
+  // and a sign-off needs every such frame either rejected or gone.
+  const ready = frames.filter((f) => f.status === 'done' || (f.status === 'failed' && args.decision === 'rejected'))
   for (const f of ready) {
     await tx.insert(t.decisions).values({ frameId: f.id, teamId: args.teamId, decision: args.decision, note: args.note, decidedBy: args.userId })
       .onDuplicateKeyUpdate({ set: { decision: args.decision, note: args.note, decidedBy: args.userId } })
@@ -22,5 +24,6 @@ export async function recordDecisions(tx: Tx, args: { teamId: number; frameIds: 
       details: { decision: args.decision, note: args.note, previous: f.prev ? { decision: f.prev, note: f.prevNote } : null },
     })
   }
-  return { updated: ready.length, notReady: frames.filter((f) => f.status !== 'done').map((f) => f.id), found: frames.map((f) => f.id) }
+  const readyIds = new Set(ready.map((f) => f.id))
+  return { updated: ready.length, updatedIds: [...readyIds], notReady: frames.filter((f) => !readyIds.has(f.id)).map((f) => f.id), found: frames.map((f) => f.id) }
 }

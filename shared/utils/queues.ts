@@ -24,3 +24,12 @@ export interface AnalyseJob {
 
 /** One job id per frame: adding it twice while it waits is a no-op in BullMQ. */
 export const analyseJobId = (frameId: number) => `frame-${frameId}`
+
+export const QUEUE_SHEET = 'sheet'
+
+export interface SheetJob {
+  signoffId: number
+}
+
+/** One sheet per sign-off: a second add while the first waits or is kept is a no-op. */
+export const sheetJobId = (signoffId: number) => `signoff-${signoffId}`

@@ -25,6 +25,8 @@ export const CAN = {
   decide: ['owner', 'reviewer'],
   signOff: ['owner', 'reviewer'],
   downloadSheet: ['owner', 'reviewer', 'producer'],
+  /** Undoing a sign-off unlocks a reel the producer may already have sent on: owners only. */
+  reopen: ['owner'],
   manageTeam: ['owner'],
 } as const satisfies Record<string, readonly Role[]>
 

@@ -50,6 +50,14 @@ const ROUTES: Route[] = [
   { method: 'GET', file: 'frames/[id]/index.get.ts', path: (c) => `/api/frames/${c.frameId}`, permission: 'view' },
   { method: 'GET', file: 'frames/[id]/line/[n].get.ts', path: (c) => `/api/frames/${c.frameId}/line/3`, permission: 'view' },
   { method: 'GET', file: 'frames/[id]/images/[kind].get.ts', path: (c) => `/api/frames/${c.frameId}/images/thumb`, permission: 'view' },
+  { method: 'GET', file: 'reels/[id]/sheet.get.ts', path: (c) => `/api/reels/${c.reelId}/sheet`, permission: 'view' },
+  // The matrix reel is never signed off: an allowed role gets 409 "not signed off", never an access error.
+  { method: 'GET', file: 'reels/[id]/sheet.pdf.get.ts', path: (c) => `/api/reels/${c.reelId}/sheet.pdf`, permission: 'downloadSheet' },
+  { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.reelId}/sheet.csv`, permission: 'downloadSheet' },
+  // The matrix frame is decided by other rows at random: an allowed role gets 409 (naming what blocks) or signs off,
+  // and the reopen row right after unlocks it again so the other rows keep a writable reel.
+  { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.reelId}/signoff`, permission: 'signOff' },
+  { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.reelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
 ]
 
 /** Routes that need no session: the token or the credentials are the proof. */

@@ -1,6 +1,7 @@
 import { IdParams } from '../../../../shared/utils/validation'
 import { BulkDecisionBody } from '../../../../shared/utils/decisions'
 import { recordDecisions } from '../../../lib/decisions'
+import { rejectionMailText, rejectionNotices } from '../../../lib/sheet-notify'
 
 /** The same decision and note on many frames of a reel at once. */
 export default defineEventHandler(async (event) => {
@@ -8,7 +9,17 @@ export default defineEventHandler(async (event) => {
   const { reel, user } = await requireReel(event, id, 'decide')
   const { frameIds, decision, note } = await readValidatedBody(event, BulkDecisionBody.parse)
   await assertReelOpen(reel.id)
-  const res = await useDb().transaction((tx) => recordDecisions(tx, { teamId: reel.teamId, frameIds, userId: user.id, decision, note }))
+  const res = await useDb().transaction(async (tx) => {
+    const res = await recordDecisions(tx, { teamId: reel.teamId, frameIds, userId: user.id, decision, note })
+    // One mail per uploader for the whole batch, queued inside the transaction so that with
+    // Redis down the batch is refused (503) rather than saved unannounced.
+    if (decision === 'rejected') {
+      for (const n of await rejectionNotices(tx, { teamId: reel.teamId, frameIds: res.updatedIds, deciderId: user.id })) {
+        await queueMail(mailWithLink({ ...rejectionMailText(n, { note, deciderName: user.name }), link: appUrl(`/reels/${n.reelId}`) }))
+      }
+    }
+    return res
+  })
   // Ids of other reels or teams are ignored, exactly as ids that do not exist.
   return { updated: res.updated, notAnalysed: res.notReady }
 })
