@@ -1,25 +1,30 @@
 // Entry point of the worker process: wires the plain processors to BullMQ workers.
 // It never serves HTTP; run as many as you like against the same Redis, S3 and MariaDB.
+// Analysis runs in BullMQ's sandbox on worker threads (analyse-sandbox.ts): the engine is
+// synchronous, so in-process concurrency would still use a single core, and a busy event
+// loop here would also delay the lock renewals that tell BullMQ this worker is alive.
 import { availableParallelism } from 'node:os'
 import { Queue, Worker } from 'bullmq'
 import { Redis } from 'ioredis'
 import nodemailer from 'nodemailer'
 import { createDb } from '../server/db/client'
-import { Storage, storageConfigFromEnv } from '../server/lib/storage'
 import { DEFAULT_JOB_OPTIONS, QUEUE_ANALYSE, QUEUE_MAIL, type AnalyseJob, type MailJob } from '../shared/utils/queues'
-import { processAnalyse } from './analyse-frame'
 import { workerEnv } from './env'
 import { processMail } from './mail'
 import { startSheetWorker } from './sheet-worker'
-import { sweep } from './sweeper'
+import { msFromEnv, sweep, SWEEP } from './sweeper'
 
 const env = workerEnv()
 const concurrency = env.concurrency ?? availableParallelism()
 const connection = new Redis(env.redisUrl, { maxRetriesPerRequest: null })
 connection.on('error', (e) => console.error('[worker] redis', e.message))
 const transport = nodemailer.createTransport(env.smtpUrl)
-const { db, pool } = createDb(env.databaseUrl, concurrency + 2)
-const storage = new Storage(storageConfigFromEnv())
+// Only the sweeper queries from this thread; the analysis threads have pools of their own.
+const { db, pool } = createDb(env.databaseUrl, 2)
+// A job whose worker died is handed out again once its lock runs out and the stall check
+// sees it (BullMQ's defaults, 30 s each); fault tests shorten both through the environment.
+const lockDuration = msFromEnv('LW_LOCK_DURATION_MS', 30_000)
+const stalledInterval = msFromEnv('LW_STALLED_INTERVAL_MS', 30_000)
 const analyseQueue = new Queue<AnalyseJob>(QUEUE_ANALYSE, { connection, defaultJobOptions: DEFAULT_JOB_OPTIONS })
 analyseQueue.on('error', (e) => console.error('[worker] queue', e.message))
 
@@ -27,7 +32,9 @@ const sheets = startSheetWorker(connection, env.databaseUrl)
 const workers = [
   new Worker<MailJob>(QUEUE_MAIL, (job) => processMail(job, transport, env.mailFrom), { connection, concurrency: 4 }),
   sheets.worker,
-  new Worker<AnalyseJob>(QUEUE_ANALYSE, (job) => processAnalyse(job, { db, storage }), { connection, concurrency }),
+  new Worker<AnalyseJob>(QUEUE_ANALYSE, new URL('./analyse-sandbox.mjs', import.meta.url), {
+    connection, concurrency, lockDuration, stalledInterval, useWorkerThreads: true,
+  }),
 ]
 for (const w of workers) {
   w.on('error', (e) => console.error(`[worker ${w.name}]`, e.message))
@@ -37,7 +44,7 @@ for (const w of workers) {
 const sweepTimer = setInterval(() => {
   sweep(db, analyseQueue).then((n) => { if (n) console.log(`[worker] re-queued ${n} frame(s)`) })
     .catch((e) => console.error('[worker] sweep', (e as Error).message))
-}, 10_000)
+}, SWEEP.intervalMs)
 console.log(`[worker] ready: analyse ×${concurrency}, mail ×4, sheet ×1`)
 
 let closing = false

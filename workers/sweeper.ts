@@ -7,11 +7,23 @@ import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
 import { analyseJobId, type AnalyseJob } from '../shared/utils/queues'
 
+/** A whole number of milliseconds from the environment, else the production default. */
+export function msFromEnv(name: string, fallback: number): number {
+  const raw = process.env[name]
+  if (raw === undefined || raw === '') return fallback
+  const v = Number(raw)
+  if (!Number.isInteger(v) || v <= 0) throw new Error(`${name} must be a positive whole number of milliseconds (got "${raw}")`)
+  return v
+}
+
+// Fault tests shorten these through the environment; production keeps the defaults.
 export const SWEEP = {
+  /** How often the worker looks for frames to queue again. */
+  intervalMs: msFromEnv('LW_SWEEP_INTERVAL_MS', 10_000),
   /** A `queued` frame older than this without a waiting job is queued again. */
-  queuedAfterMs: 20_000,
+  queuedAfterMs: msFromEnv('LW_SWEEP_QUEUED_AFTER_MS', 20_000),
   /** An `analysing` frame untouched this long has lost its worker. */
-  analysingAfterMs: 5 * 60_000,
+  analysingAfterMs: msFromEnv('LW_SWEEP_ANALYSING_AFTER_MS', 5 * 60_000),
   batch: 500,
 }
 
