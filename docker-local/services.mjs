@@ -5,7 +5,7 @@
 // `start` recorded. Plain Node with no dependencies, because `npm start` runs it before
 // node_modules may exist.
 //
-//   node docker-local/services.mjs start|stop|status [dev|test]
+//   node docker-local/services.mjs start|stop|status [dev|test|bench]
 import { spawn, spawnSync, execFileSync } from 'node:child_process'
 import { existsSync, mkdirSync, readFileSync, writeFileSync, rmSync, openSync, readdirSync } from 'node:fs'
 import { createConnection } from 'node:net'
@@ -17,12 +17,14 @@ export const ROOT = resolve(dirname(fileURLToPath(import.meta.url)), '..')
 const PROFILES = {
   dev: { app: 3000, db: 3307, redis: 6380, s3: 4569, smtp: 1025, mailUi: 1080, database: 'linewise' },
   test: { app: 3100, db: 3317, redis: 6390, s3: 4579, smtp: 1035, mailUi: 1090, database: 'linewise_test' },
+  // `npm run bench:pipeline`: its own ports and data, so it can run beside `npm start`/`npm test`.
+  bench: { app: 3300, db: 3327, redis: 6400, s3: 4589, smtp: 1045, mailUi: 1095, database: 'linewise_bench' },
 }
 
 /** Ports and paths of a profile; every port can be moved with LW_<NAME>_PORT. */
 export function profile(name = 'dev') {
   const base = PROFILES[name]
-  if (!base) throw new Error(`Unknown profile "${name}" (use dev or test)`)
+  if (!base) throw new Error(`Unknown profile "${name}" (use dev, test or bench)`)
   const env = (k, d) => Number(process.env[`LW_${k}_PORT`] ?? d)
   const dataDir = join(ROOT, '.data', name)
   return {
@@ -252,7 +254,7 @@ if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.ur
   const p = profile(prof)
   const run = { start: () => startServices(p), stop: () => stopServices(p), status: async () => console.log(status(p)) }[cmd]
   if (!run) {
-    console.error('usage: node docker-local/services.mjs start|stop|status [dev|test]')
+    console.error('usage: node docker-local/services.mjs start|stop|status [dev|test|bench]')
     process.exit(2)
   }
   run().catch((e) => { console.error(`[services] ${e.message}`); process.exit(1) })

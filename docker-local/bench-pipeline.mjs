@@ -1,0 +1,141 @@
+#!/usr/bin/env node
+// `npm run bench:pipeline`: the whole pipeline under load. Brings up the stack as `npm test`
+// does, on the `bench` profile (own ports, data folder and database), uploads synthetic
+// 1080p PNG frames through the multipart API, waits until every one is analysed, prints
+// frames per second and the time from upload to result, then stops what it started.
+// Not a test: the figures depend on the machine and on whatever else runs on it.
+//
+//   LW_BENCH_FRAMES=200 LW_BENCH_PER_REQUEST=4 LW_BENCH_PARALLEL=3 npm run bench:pipeline
+import { randomBytes } from 'node:crypto'
+import { availableParallelism, loadavg } from 'node:os'
+import { readFileSync, rmSync } from 'node:fs'
+import { basename, join } from 'node:path'
+import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
+import { ensureBuild, ensureNodeModules, log, migrateAndSeed, startApp, waitForHttp } from './stack.mjs'
+
+const FRAMES = Number(process.env.LW_BENCH_FRAMES ?? 200)
+const PER_REQUEST = Number(process.env.LW_BENCH_PER_REQUEST ?? 4)
+const PARALLEL = Number(process.env.LW_BENCH_PARALLEL ?? 3)
+const TIMEOUT_MS = Number(process.env.LW_BENCH_TIMEOUT_MS ?? 30 * 60_000)
+
+const p = profile('bench')
+let stopApp = async () => {}
+let code = 1
+let stopping = false
+const onSignal = () => { if (!stopping) { stopping = true; log('interrupted; stopping'); cleanUp().then(() => process.exit(130)) } }
+process.on('SIGINT', onSignal)
+process.on('SIGTERM', onSignal)
+
+async function cleanUp() {
+  await stopApp()
+  await stopServices(p)
+}
+
+const sleep = (ms) => new Promise((r) => setTimeout(r, ms))
+const pct = (sorted, q) => sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil(q * sorted.length) - 1))]
+
+async function api(base, cookie, method, path, body) {
+  const res = await fetch(new URL(path, base), {
+    method, headers: { cookie, ...(body ? { 'content-type': 'application/json' } : {}) }, body: body ? JSON.stringify(body) : undefined,
+  })
+  const json = await res.json().catch(() => null)
+  if (!res.ok) throw new Error(`${method} ${path}: ${res.status} ${JSON.stringify(json)}`)
+  return { json, res }
+}
+
+try {
+  ensureNodeModules()
+  await stopServices(p)
+  rmSync(join(p.dataDir, 's3'), { recursive: true, force: true })
+  await startServices(p)
+  resetDatabase(p)
+  const env = { ...process.env, ...serviceEnv(p), NUXT_SESSION_PASSWORD: randomBytes(36).toString('base64url') }
+  migrateAndSeed(env)
+  ensureBuild()
+
+  // Made once and kept under .data/bench/frames: generating 200 PNGs takes about a minute.
+  const { ensureFrames } = await import('../tests/bench/pipeline-frames.mjs')
+  log(`preparing ${FRAMES} 1080p PNG frames`)
+  const paths = await ensureFrames(join(p.dataDir, 'frames'), FRAMES)
+  const files = paths.map((path) => ({ name: basename(path), bytes: readFileSync(path) }))
+  const totalMb = files.reduce((s, f) => s + f.bytes.length, 0) / 2 ** 20
+
+  stopApp = startApp(env, { port: p.ports.app, runDir: p.runDir, quiet: true })
+  const base = env.NUXT_PUBLIC_APP_URL
+  await waitForHttp(`${base}/login`)
+
+  const { tsImport } = await import('tsx/esm/api')
+  const { DEMO_USERS } = await tsImport('../server/db/demo.ts', import.meta.url)
+  const owner = DEMO_USERS.find((u) => u.role === 'owner')
+  const login = await fetch(new URL('/api/auth/login', base), {
+    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: owner.email, password: owner.password }),
+  })
+  if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`)
+  const cookie = login.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
+  const { json: teams } = await api(base, cookie, 'GET', '/api/teams')
+  const teamId = (teams.teams ?? teams)[0].id
+  const { json: prods } = await api(base, cookie, 'GET', `/api/teams/${teamId}/productions`)
+  const productionId = (prods.productions ?? prods)[0].id
+  const { json: reel } = await api(base, cookie, 'POST', `/api/productions/${productionId}/reels`, { name: `Bench ${new Date().toISOString()}` })
+
+  log(`uploading ${FRAMES} frames (${totalMb.toFixed(0)} MB), ${PER_REQUEST} per request, ${PARALLEL} requests at a time`)
+  const t0 = Date.now()
+  const batches = []
+  for (let i = 0; i < files.length; i += PER_REQUEST) batches.push(files.slice(i, i + PER_REQUEST))
+  let next = 0
+  let refused = 0
+  async function uploader() {
+    while (next < batches.length) {
+      const batch = batches[next++]
+      const form = new FormData()
+      for (const f of batch) form.append('file', new Blob([f.bytes], { type: 'image/png' }), f.name)
+      const res = await fetch(new URL(`/api/reels/${reel.id}/frames`, base), { method: 'POST', headers: { cookie }, body: form })
+      const body = await res.json().catch(() => null)
+      for (const f of body?.files ?? []) if (!f.ok) { refused++; console.error(`refused ${f.name}: ${f.reason}`) }
+      if (!body?.files) { refused += batch.length; console.error(`upload failed: ${res.status}`) }
+    }
+  }
+  await Promise.all(Array.from({ length: PARALLEL }, uploader))
+  const uploadedMs = Date.now() - t0
+  if (refused) throw new Error(`${refused} frame(s) refused`)
+
+  // Timings come from the database: frames.created_at (stored) and analyses.created_at (result).
+  const mysql = (await import('mysql2/promise')).default
+  const conn = await mysql.createConnection({ uri: env.NUXT_DATABASE_URL, timezone: 'Z' })
+  const until = Date.now() + TIMEOUT_MS
+  let last = ''
+  for (;;) {
+    const [[c]] = await conn.query(`SELECT SUM(status = 'done') AS done, SUM(status = 'failed') AS failed, COUNT(*) AS total FROM frames WHERE reel_id = ?`, [reel.id])
+    const line = `${Number(c.done)}/${FRAMES} done, ${Number(c.failed)} failed`
+    if (line !== last) { process.stdout.write(`\r[linewise] ${line}   `); last = line }
+    if (Number(c.done) + Number(c.failed) >= FRAMES) break
+    if (Date.now() > until) throw new Error(`not finished within ${TIMEOUT_MS / 1000} s`)
+    await sleep(200)
+  }
+  const wallMs = Date.now() - t0
+  process.stdout.write('\n')
+  const [rows] = await conn.query(`SELECT f.created_at AS stored, a.created_at AS analysed, a.duration_ms AS job
+    FROM frames f JOIN analyses a ON a.frame_id = f.id WHERE f.reel_id = ?`, [reel.id])
+  await conn.end()
+  const lat = rows.map((r) => r.analysed - r.stored).sort((a, b) => a - b)
+  const jobs = rows.map((r) => r.job).sort((a, b) => a - b)
+  const firstStored = Math.min(...rows.map((r) => +r.stored))
+  const lastDone = Math.max(...rows.map((r) => +r.analysed))
+  const fps = rows.length / ((lastDone - firstStored) / 1000)
+  console.log(`
+  Pipeline benchmark: ${rows.length} × 1920×1080 PNG (${(totalMb / FRAMES).toFixed(1)} MB each), ${availableParallelism()} cores, load before ${loadavg()[0].toFixed(1)}
+  worker concurrency         ${process.env.LW_WORKER_CONCURRENCY ?? `${availableParallelism()} (cores)`}
+  uploads finished after     ${(uploadedMs / 1000).toFixed(1)} s (${(FRAMES / (uploadedMs / 1000)).toFixed(1)} frames/s accepted)
+  all analysed after         ${(wallMs / 1000).toFixed(1)} s
+  throughput                 ${fps.toFixed(2)} frames/s (first stored → last result)
+  upload → result            p50 ${(pct(lat, 0.5) / 1000).toFixed(1)} s, p95 ${(pct(lat, 0.95) / 1000).toFixed(1)} s
+  one job in the worker      p50 ${pct(jobs, 0.5)} ms, p95 ${pct(jobs, 0.95)} ms (fetch, decode, engine, images, puts)
+`)
+  code = rows.length === FRAMES ? 0 : 1
+} catch (e) {
+  console.error(`[linewise] ${e.stack ?? e.message}`)
+  code = 1
+} finally {
+  if (!stopping) await cleanUp()
+}
+process.exit(code)
