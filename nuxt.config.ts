@@ -35,6 +35,11 @@ export default defineNuxtConfig({
       appUrl: 'http://127.0.0.1:3000',
     },
   },
+  vite: {
+    // Nuxt leaves shared/ external in the SSR bundle for Nitro to inline; relative external
+    // paths break when the production build lives in node_modules/.cache, absolute ones do not.
+    build: { rollupOptions: { makeAbsoluteExternalsRelative: false } },
+  },
   nitro: {
     experimental: { tasks: false },
   },
