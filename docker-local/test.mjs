@@ -4,7 +4,7 @@
 // Extra arguments go to vitest, e.g. `npm test -- tests/integration`.
 import { spawn } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
-import { rmSync } from 'node:fs'
+import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
 import { join } from 'node:path'
 import { ensureDebian, profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
 import { ensureBuild, ensureNodeModules, log, migrateAndSeed, startApp, waitForHttp } from './stack.mjs'
@@ -13,7 +13,31 @@ const p = profile('test')
 let stopApp = async () => {}
 let code = 1
 
+/**
+ * One test run at a time per checkout: a second `npm test` waits for the first instead of
+ * stopping the services under it. A lock whose process is gone is taken over.
+ */
+async function takeLock() {
+  const file = join(ROOT, '.data', `${p.name}.lock`)
+  mkdirSync(join(ROOT, '.data'), { recursive: true })
+  for (let said = false; ;) {
+    try {
+      writeFileSync(file, String(process.pid), { flag: 'wx' })
+      process.on('exit', () => { try { if (readFileSync(file, 'utf8') === String(process.pid)) rmSync(file) } catch { /* gone */ } })
+      return
+    } catch {
+      const holder = Number(readFileSync(file, 'utf8'))
+      let alive = false
+      try { process.kill(holder, 0); alive = true } catch { /* dead */ }
+      if (!alive) { rmSync(file, { force: true }); continue }
+      if (!said) { log(`waiting for another test run (pid ${holder}) to finish`); said = true }
+      await new Promise((r) => setTimeout(r, 2000))
+    }
+  }
+}
+
 try {
+  await takeLock()
   ensureNodeModules()
   // ffmpeg is the independent reference implementation in the engine tests; chromium runs the browser tests.
   ensureDebian({ ffmpeg: 'ffmpeg', chromium: 'chromium' })
