@@ -194,15 +194,31 @@ export function useFrameUpload(reelId: MaybeRefOrGetter<number>, hooks: { onQueu
     }
   }
 
-  async function transfer(i: UploadItem) {
-    i.state = 'sending'
+  // Frames are numbered in the order the server confirms them. Sends run in parallel, but each
+  // confirmation waits for the one of the file before it, so a reel's index follows file-name order.
+  let lastTurn: Promise<void> = Promise.resolve()
+
+  async function transfer(i: UploadItem, release: () => void) {
+    const previous = lastTurn
+    let done!: () => void
+    lastTurn = new Promise((resolve) => { done = resolve })
     try {
-      await send(i)
-    } catch (e) {
-      const retryFrom = e instanceof SendError ? e.retryFrom : 'send'
-      return fail(i, (e as Error).message || 'Sending failed', retryFrom)
+      i.state = 'sending'
+      try {
+        await send(i)
+      } catch (e) {
+        const retryFrom = e instanceof SendError ? e.retryFrom : 'send'
+        return fail(i, (e as Error).message || 'Sending failed', retryFrom)
+      } finally {
+        // The sending slot is free once the bytes are out; waiting for a turn holds no connection.
+        release()
+      }
+      i.state = 'checking'
+      await previous
+      await complete(i)
+    } finally {
+      done()
     }
-    await complete(i)
   }
 
   function pump() {
@@ -225,7 +241,10 @@ export function useFrameUpload(reelId: MaybeRefOrGetter<number>, hooks: { onQueu
       active++
       // Marked before the await so that the next loop turn does not pick it again.
       next.state = 'sending'
-      void transfer(next).finally(() => {
+      let released = false
+      void transfer(next, () => {
+        if (released) return
+        released = true
         active--
         pump()
       })
