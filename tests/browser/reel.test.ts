@@ -1,7 +1,8 @@
-// The editor creates a studio-range reel on the production overview, drops three frame grabs
-// (and one file that is not a picture) on its upload area, and watches them being measured
-// without reloading the page; the table's units and filters change what it shows; a QC
-// reviewer waives the caution frame with a note; the overview counts it all.
+// The editor creates a studio-range reel on the production overview, drops three frame grabs,
+// one PNG cut short and one file that is not a picture on its upload area, and watches them
+// being measured without reloading the page; the table's units and filters change what it
+// shows; a producer sees it all without controls; a QC reviewer waives the caution frame with
+// a note; the overview counts it all.
 // Screens are saved to test-results/screens/ for a person to look at.
 //
 // The frames are made here with sharp (320 × 180, RGB on a studio-range reel, BT.601, the demo
@@ -13,6 +14,8 @@
 //    C = 0.255; Y′ + C = 1.190 → 7.5 + 92.5·1.190 = 117.6 IRE composite, inside the caution band → caution.
 //  (REFERENCE.md §4 for the IRE scale and U/V weights; `npm run analyse -- FILE --range studio` gives
 //  the same three verdicts, 106.3 IRE and 117.6 IRE.)
+// The fourth PNG is the yellow one cut after 1,500 bytes: its header (320 × 180) passes the upload
+// checks, so it becomes a frame, and the worker then fails to decode it and says why.
 import { randomBytes } from 'node:crypto'
 import sharp from 'sharp'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
@@ -23,6 +26,7 @@ import { APP_URL } from '../support/env'
 
 const editor = DEMO_USERS.find((u) => u.role === 'editor')!
 const reviewer = DEMO_USERS.find((u) => u.role === 'reviewer')!
+const producer = DEMO_USERS.find((u) => u.role === 'producer')!
 const reelName = `Day 3 — Camera C ${randomBytes(3).toString('hex')}`
 const W = 320
 const H = 180
@@ -30,11 +34,13 @@ const H = 180
 let browser: Browser
 let editorCtx: BrowserContext
 let reviewerCtx: BrowserContext
+let producerCtx: BrowserContext
 let page: Page
 let reviewerPage: Page
 let reelUrl = ''
 let productionUrl = ''
 const files: { name: string; mimeType: string; buffer: Buffer }[] = []
+let truncated: { name: string; mimeType: string; buffer: Buffer }
 
 const url = (path: string) => `${APP_URL()}${path}`
 const VIEWPORT = { width: 1280, height: 800 }
@@ -75,9 +81,11 @@ beforeAll(async () => {
     { name: 'C002_superwhite.png', mimeType: 'image/png', buffer: await frame((x, y) => (inPatch(x, y) ? [250, 250, 250] : ramp(x, y))) },
     { name: 'C003_yellow.png', mimeType: 'image/png', buffer: await frame((x, y) => (inPatch(x, y) ? [235, 235, 110] : ramp(x, y))) },
   )
+  truncated = { name: 'C004_cut_short.png', mimeType: 'image/png', buffer: files[2]!.buffer.subarray(0, 1500) }
   browser = await launchBrowser()
   editorCtx = await browser.newContext({ viewport: VIEWPORT })
   reviewerCtx = await browser.newContext({ viewport: VIEWPORT })
+  producerCtx = await browser.newContext({ viewport: VIEWPORT })
   page = await editorCtx.newPage()
   reviewerPage = await reviewerCtx.newPage()
 })
@@ -115,21 +123,22 @@ describe('a reel from creation to decisions', () => {
     await screen(page, 'reel-02-empty-reel')
   })
 
-  it('uploads three frames through the drop zone’s file input, refuses a text file at once, and shows them measured without a reload', async () => {
+  it('uploads four PNGs through the drop zone’s file input, refuses a text file at once, and shows them measured or failed without a reload', async () => {
     // Anything that survives on window proves the page was never reloaded.
     await page.evaluate(() => { (window as unknown as { lwMarker: number }).lwMarker = 4417 })
     await page.getByTestId('file-input').setInputFiles([
       ...files,
+      truncated,
       { name: 'shot-notes.txt', mimeType: 'text/plain', buffer: Buffer.from('not a picture') },
     ])
     const refused = page.locator('[data-testid="upload-item"][data-name="shot-notes.txt"]')
     await expect.poll(() => refused.getAttribute('data-state')).toBe('refused')
     expect(await refused.getByTestId('upload-reason').textContent()).toBe('“.txt” files are not read: send PNG, TIFF, JPEG or WebP stills, or raw .uyvy, .yuv or .v210')
 
-    for (const f of files) {
+    for (const f of [...files, truncated]) {
       await expect.poll(() => page.locator(`[data-testid="upload-item"][data-name="${f.name}"]`).getAttribute('data-state'), { timeout: 30_000 }).toBe('queued')
     }
-    expect(await page.getByTestId('upload-summary').textContent()).toBe('4 of 4 finished · 3 queued · 1 refused')
+    expect(await page.getByTestId('upload-summary').textContent()).toBe('5 of 5 finished · 4 queued · 1 refused')
 
     // The rows appear and reach "done" by polling alone.
     for (const f of files) {
@@ -138,8 +147,14 @@ describe('a reel from creation to decisions', () => {
     expect(await page.evaluate(() => (window as unknown as { lwMarker?: number }).lwMarker)).toBe(4417)
     // Sent in parallel, confirmed in file order: the reel's index follows the file names.
     expect(await page.getByTestId('frame-row').evaluateAll((rows) => rows.map((r) => [r.querySelector('td[data-col="seq"]')?.textContent?.trim(), r.getAttribute('data-name')])))
-      .toEqual([['#1', 'C001_normal.png'], ['#2', 'C002_superwhite.png'], ['#3', 'C003_yellow.png']])
-    await expect.poll(() => page.getByTestId('reel-finished').textContent()).toBe('3 of 3')
+      .toEqual([['#1', 'C001_normal.png'], ['#2', 'C002_superwhite.png'], ['#3', 'C003_yellow.png'], ['#4', 'C004_cut_short.png']])
+
+    // The cut-short PNG fails in the worker; its reason is shown in the table and in the list of failed frames.
+    await expect.poll(() => cell(page, truncated.name, 'status').locator('[data-testid="frame-status"]').getAttribute('data-status'), { timeout: 60_000 }).toBe('failed')
+    expect(await cell(page, truncated.name, 'name').getByTestId('frame-fail-reason').textContent()).toMatch(/cannot be decoded/)
+    await page.getByTestId('failed-frames').getByTestId('failed-frame').filter({ hasText: truncated.name }).waitFor()
+    expect(await page.getByTestId('failed-frames').innerText()).toMatch(/1 frame could not be measured[\s\S]*C004_cut_short\.png[\s\S]*cannot be decoded/)
+    await expect.poll(() => page.getByTestId('reel-finished').textContent()).toBe('4 of 4')
     await screen(page, 'reel-03-uploaded-and-measured')
   })
 
@@ -199,8 +214,20 @@ describe('a reel from creation to decisions', () => {
     await page.getByTestId('filter-search').fill('nothing-like-this')
     await page.getByTestId('frames-none-match').waitFor()
     await page.getByTestId('filter-clear').click()
-    await expect.poll(() => page.getByTestId('frame-row').count()).toBe(3)
+    await expect.poll(() => page.getByTestId('frame-row').count()).toBe(4)
     expect(new URL(page.url()).search).toBe('')
+  })
+
+  it('shows a producer the same reel with no upload area and no decision controls', async () => {
+    const p = await producerCtx.newPage()
+    await signIn(p, producer, reelUrl)
+    await row(p, 'C003_yellow.png').waitFor()
+    expect(await p.getByTestId('drop-zone').count()).toBe(0)
+    expect(await p.getByTestId('reel-no-upload').count()).toBe(1)
+    expect(await p.getByTestId('select-row').count()).toBe(0)
+    expect(await p.getByTestId('decide-role-note').count()).toBe(1)
+    await screen(p, 'reel-06-producer')
+    await p.close()
   })
 
   it('lets a QC reviewer waive the caution frame, asking for a note first', async () => {
@@ -214,7 +241,7 @@ describe('a reel from creation to decisions', () => {
     await expect.poll(() => reviewerPage.getByTestId('bulk-decision').innerText()).toContain('A note is required to waive frames')
 
     await reviewerPage.getByTestId('bulk-note').fill('Specular glint on the sign; the grade keeps it.')
-    await screen(reviewerPage, 'reel-06-bulk-waive')
+    await screen(reviewerPage, 'reel-07-bulk-waive')
     await reviewerPage.getByTestId('bulk-apply').click()
     await expect.poll(() => reviewerPage.getByTestId('decision-notice').textContent()).toBe('1 frame waived.')
     await expect.poll(() => yellow.locator('[data-testid="decision-badge"]').getAttribute('data-decision')).toBe('waived')
@@ -224,18 +251,22 @@ describe('a reel from creation to decisions', () => {
     await reviewerPage.getByTestId('filter-decision').selectOption('waived')
     await expect.poll(() => reviewerPage.getByTestId('frame-row').count()).toBe(1)
     await reviewerPage.getByTestId('filter-decision').selectOption('none')
-    await expect.poll(() => reviewerPage.getByTestId('frame-row').evaluateAll((rows) => rows.map((r) => r.getAttribute('data-name')))).toEqual(['C001_normal.png', 'C002_superwhite.png'])
-    await screen(reviewerPage, 'reel-07-undecided')
+    await expect.poll(() => reviewerPage.getByTestId('frame-row').evaluateAll((rows) => rows.map((r) => r.getAttribute('data-name'))))
+      .toEqual(['C001_normal.png', 'C002_superwhite.png', 'C004_cut_short.png'])
+    // A frame that could not be measured cannot be decided.
+    expect(await row(reviewerPage, 'C004_cut_short.png').getByTestId('select-row').isDisabled()).toBe(true)
+    await screen(reviewerPage, 'reel-08-undecided')
   })
 
   it('counts the reel on the production overview by verdict, decision and progress', async () => {
     await page.goto(url(productionUrl))
     const reelRow = page.getByTestId('reel-row').filter({ hasText: reelName })
     await reelRow.waitFor()
-    expect(await reelRow.getByTestId('reel-total').textContent()).toBe('3')
+    expect(await reelRow.getByTestId('reel-total').textContent()).toBe('4')
     expect((await reelRow.getByTestId('reel-verdicts').innerText()).replace(/\s+/g, ' ')).toBe('1 pass 1 caution 1 fail')
     expect((await reelRow.getByTestId('reel-decisions').innerText()).replace(/\s+/g, ' ')).toBe('Accepted 0 · Rejected 0 Waived 1 · Undecided 2')
-    expect(await reelRow.getByTestId('reel-analysed').innerText()).toBe('3/3')
-    await screen(page, 'reel-08-production-overview')
+    expect(await reelRow.getByTestId('reel-analysed').innerText()).toBe('4/4')
+    expect(await reelRow.innerText()).toContain('1 failed')
+    await screen(page, 'reel-09-production-overview')
   })
 })
