@@ -58,7 +58,7 @@ export function linePlotOption(samples: LineSampleJson[], width: number, traces:
   return {
     backgroundColor: PLOT_COLOURS.background,
     animation: false,
-    grid: { left: 64, right: 20, top: 44, bottom: 44 },
+    grid: { left: 64, right: 20, top: 48, bottom: 48 },
     tooltip: {
       trigger: 'axis',
       axisPointer: { type: 'line', lineStyle: { color: PLOT_COLOURS.label } },
@@ -72,19 +72,20 @@ export function linePlotOption(samples: LineSampleJson[], width: number, traces:
     },
     xAxis: [
       {
-        type: 'value', position: 'bottom', min: 0, max: usMax, name: 'µs', nameLocation: 'end', nameGap: 8,
-        nameTextStyle: axisText, axisLabel: { ...axisText, formatter: (v: number) => v.toFixed(0) },
-        axisLine: { lineStyle: { color: PLOT_COLOURS.graticule } }, splitLine: { show: false },
+        // onZero off: the time axis belongs under the plot, not on the 0 IRE (blanking) line.
+        type: 'value', position: 'bottom', min: 0, max: usMax, name: 'µs', nameLocation: 'middle', nameGap: 26,
+        nameTextStyle: axisText, axisLabel: { ...axisText, showMaxLabel: false, formatter: (v: number) => v.toFixed(0) },
+        axisLine: { onZero: false, lineStyle: { color: PLOT_COLOURS.graticule } }, splitLine: { show: false },
       },
       {
         // Same span as the microsecond axis, counted in samples, for reading a position off the file.
-        type: 'value', position: 'top', min: 0, max: Math.max(0, width - 1), name: 'sample', nameLocation: 'end', nameGap: 8,
-        nameTextStyle: axisText, axisLabel: { ...axisText, formatter: (v: number) => v.toFixed(0) },
-        axisLine: { lineStyle: { color: PLOT_COLOURS.graticule } }, splitLine: { show: false },
+        type: 'value', position: 'top', min: 0, max: Math.max(0, width - 1), name: 'sample', nameLocation: 'middle', nameGap: 24,
+        nameTextStyle: axisText, axisLabel: { ...axisText, showMaxLabel: false, formatter: (v: number) => v.toFixed(0) },
+        axisLine: { onZero: false, lineStyle: { color: PLOT_COLOURS.graticule } }, splitLine: { show: false },
       },
     ],
     yAxis: {
-      type: 'value', min: y.min, max: y.max, name: 'IRE', nameTextStyle: axisText, nameGap: 12,
+      type: 'value', min: y.min, max: y.max, name: 'IRE (7.5 setup)', nameLocation: 'middle', nameRotate: 90, nameGap: 40, nameTextStyle: axisText,
       axisLabel: { ...axisText, customValues: [...LINE_GRATICULE_IRE], formatter: (v: number) => (v === 7.5 ? '7.5' : String(v)) },
       axisTick: { customValues: [...LINE_GRATICULE_IRE] },
       axisLine: { show: false }, splitLine: { show: false },
