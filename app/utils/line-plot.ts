@@ -86,7 +86,8 @@ export function linePlotOption(samples: LineSampleJson[], width: number, traces:
     ],
     yAxis: {
       type: 'value', min: y.min, max: y.max, name: 'IRE (7.5 setup)', nameLocation: 'middle', nameRotate: 90, nameGap: 40, nameTextStyle: axisText,
-      axisLabel: { ...axisText, customValues: [...LINE_GRATICULE_IRE], formatter: (v: number) => (v === 7.5 ? '7.5' : String(v)) },
+      // Setup carries its own label on its line; a 7.5 on the axis would sit on top of the 0.
+      axisLabel: { ...axisText, customValues: LINE_GRATICULE_IRE.filter((v) => v !== 7.5), formatter: (v: number) => String(v) },
       axisTick: { customValues: [...LINE_GRATICULE_IRE] },
       axisLine: { show: false }, splitLine: { show: false },
     },
