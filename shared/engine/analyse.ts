@@ -1,6 +1,9 @@
 import { EngineInputError, makeRowSource, STRIPE_ALIGN } from './decode'
+import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
+import type { Accumulators, Coef, Densities, Totals } from './accumulate'
+import { fastPass } from './fast'
 import { MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
-import { code8ToIre, ireToCode8 } from './scales'
+import { code8ToIre } from './scales'
 import { builtinSpec, DEFAULT_SPEC_NAME } from './specs'
 import type { DeliverySpec } from './specs'
 import { evaluateSpec } from './verdict'
@@ -9,9 +12,7 @@ import { waveformGeometry, waveformRowOffsets, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 import type { AnalyseOptions, FrameAnalysis, FrameInput, Histograms, LevelDistributions, MatrixName } from './types'
 
-/** Composite limits behind shares.compositeOut: −20…+120 IRE (REFERENCE.md §6, NTSC practice). */
-export const COMPOSITE_OUT_LOW_IRE = -20
-export const COMPOSITE_OUT_HIGH_IRE = 120
+export { COMPOSITE_OUT_HIGH_IRE, COMPOSITE_OUT_LOW_IRE } from './accumulate'
 
 /**
  * Rounding three 8-bit codes moves a decoded R', G' or B' by up to 1.41 codes (B' under BT.709:
@@ -21,12 +22,6 @@ export const COMPOSITE_OUT_HIGH_IRE = 120
  */
 export const GAMUT_MARGIN_CODE8 = 1.5
 const GAMUT_MARGIN_RGB_CODE8 = LEVEL_STEP / 2
-
-// Studio-range test on the same quarter-code grid as the level distributions, so that
-// shares.studioOut agrees with what a spec on those distributions would count.
-const LOW_BAND = 16 - LEVEL_STEP / 2
-const HIGH_LUMA = 235 + LEVEL_STEP / 2
-const HIGH_CHROMA = 240 + LEVEL_STEP / 2
 
 /** Stripe width for the density pass: 48 waveform columns at 1080p, ≈ 70 kB of each density. */
 const DENSITY_STRIPE = 2 * STRIPE_ALIGN
@@ -41,37 +36,19 @@ export function resolveMatrix(m: string | undefined): MatrixName {
   throw new EngineInputError(`unknown matrix "${m}" (use 601 or 709)`)
 }
 
-interface Totals {
-  sumY: number
-  yMin: number
-  yMax: number
-  cbMin: number
-  cbMax: number
-  crMin: number
-  crMax: number
-  compMin: number
-  compMax: number
-  cMax: number
-  compositeOut: number
-  gamutOut: number
-  studioOut: number
-}
-
-interface Densities {
-  columns: number
-  decimation: number
-  colOf: Int32Array
-  /** Level-bin index → row offset (row · columns) in the waveform densities. */
-  rowOff: Int32Array
-  luma: Uint32Array
-  flat: Uint32Array
-  r: Uint32Array
-  g: Uint32Array
-  b: Uint32Array
-  vector: Uint32Array
-}
-
 export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): FrameAnalysis {
+  return analyse(input, opts, true)
+}
+
+/**
+ * The reference pass alone: plain per-pixel arithmetic on every pixel, no fast kernel. Kept
+ * for the tests, which hold the fast kernels to it.
+ */
+export function analyseFrameReference(input: FrameInput, opts: AnalyseOptions = {}): FrameAnalysis {
+  return analyse(input, opts, false)
+}
+
+function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameAnalysis {
   const matrix = resolveMatrix(opts.matrix)
   const src = makeRowSource(input, matrix)
   const spec: DeliverySpec = opts.spec ?? builtinSpec(DEFAULT_SPEC_NAME)!
@@ -112,7 +89,7 @@ export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): Fram
     compMin: Infinity, compMax: -Infinity, cMax: 0, compositeOut: 0, gamutOut: 0, studioOut: 0,
   }
   const m = MATRICES[matrix]
-  const coef = {
+  const coef: Coef = {
     uK: U_WEIGHT * m.cbDiv, vK: V_WEIGHT * m.crDiv,
     rK: 219 * m.crDiv, bK: 219 * m.cbDiv,
     // G' − Y' = −(Kr(R'−Y') + Kb(B'−Y'))/Kg
@@ -121,7 +98,11 @@ export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): Fram
     gamHi: 235 + (input.kind === 'rgb' ? GAMUT_MARGIN_RGB_CODE8 : GAMUT_MARGIN_CODE8),
     gamLo: 16 - (input.kind === 'rgb' ? GAMUT_MARGIN_RGB_CODE8 : GAMUT_MARGIN_CODE8),
   }
-  if (dens) {
+  const acc: Accumulators = { coef, cbHist, crHist, levels, t, dens }
+  if (fast && fastPass(input, matrix, acc, DENSITY_STRIPE)) {
+    // The fast kernel has filled every accumulator.
+  }
+  else if (dens) {
     // In vertical stripes, so the part of the waveform densities a stripe touches stays in
     // cache: whole rows would spread six increments per pixel over megabytes.
     for (let x0 = 0; x0 < width; x0 += DENSITY_STRIPE) {
@@ -220,18 +201,6 @@ function coarseFromLevels(d: Uint32Array, bins: number, scale: number, offset: n
   }
   return out
 }
-
-interface Coef { uK: number, vK: number, rK: number, bK: number, gR: number, gB: number, cbOff: number, hs: number, gamHi: number, gamLo: number }
-
-// The level-bin index of a code: centred quarter-code bins from LEVEL_MIN. The span of
-// LEVEL_MIN.. is wide enough for every level any accepted input can produce (levels.ts), so
-// no clamp is needed; a typed-array store out of range would be dropped, never written.
-const LV_OFF = -LEVEL_MIN / LEVEL_STEP + 0.5
-const LV_SCALE = 1 / LEVEL_STEP
-const COMP_HI = ireToCode8(COMPOSITE_OUT_HIGH_IRE)
-const COMP_LO = ireToCode8(COMPOSITE_OUT_LOW_IRE)
-const VS_SCALE = VECTORSCOPE_SIZE / (2 * VECTORSCOPE_EXTENT)
-const VS_LAST = VECTORSCOPE_SIZE - 1
 
 /**
  * One line of the picture into every accumulator. Chroma-only work (Cb/Cr, chroma amplitude,

@@ -1,0 +1,409 @@
+// Fast kernels for the common inputs (8-bit R'G'B', UYVY, v210): the same arithmetic as the
+// reference pass in analyse.ts, read straight from the source bytes, with vertical runs folded.
+//
+// Why runs: pictures brought to a level check (bars, slates, graphics, letterbox, animation)
+// repeat a sample straight down the frame far more often than not, and every accumulator of
+// the analysis is a function of the source codes alone. So each column of a stripe keeps the
+// bins of its last source unit and a count of how many rows in a row repeated it; the
+// increments are made once per run. A unit is one pixel of R'G'B', one UYVY pair (one 32-bit
+// word) or one v210 group of six pixels (four words), so a repeat costs one compare per unit.
+// Where nothing repeats (grain, noise) each unit is flushed with a count of one.
+//
+// Every bin and extreme is computed by the reference's own expressions in the same order,
+// so the results are bit for bit those of the reference pass, except the luma sum of 8-bit
+// R'G'B', which is added as y·count per run and may differ from the reference's pixel-by-pixel
+// sum in the last bits (Y'CbCr luma is a multiple of 1/4, so its sums are exact either way).
+import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
+import type { Accumulators } from './accumulate'
+import { v210Stride } from './decode'
+import { MATRICES } from './matrix'
+import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
+import type { FrameInput, MatrixName } from './types'
+
+const LITTLE_ENDIAN = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1
+
+class Kernel {
+  readonly wave: boolean
+  readonly dl: Uint32Array; readonly dhi: Uint32Array; readonly dlo: Uint32Array; readonly dmx: Uint32Array; readonly dmn: Uint32Array
+  readonly dr: Uint32Array; readonly dg: Uint32Array; readonly db: Uint32Array
+  readonly cbH: Uint32Array; readonly crH: Uint32Array
+  readonly wl: Uint32Array; readonly wf: Uint32Array; readonly wr: Uint32Array; readonly wg: Uint32Array; readonly wb: Uint32Array
+  readonly vec: Uint32Array; readonly rowOff: Int32Array; readonly colOf: Int32Array
+  readonly uK: number; readonly vK: number; readonly rK: number; readonly bK: number; readonly gR: number; readonly gB: number
+  readonly cbOff: number; readonly hs: number; readonly gamHi: number; readonly gamLo: number
+  sumY = 0; yMin: number; yMax: number; cbMin: number; cbMax: number; crMin: number; crMax: number
+  compMin: number; compMax: number; cMax: number
+  compOut = 0; gamOut = 0; studOut = 0
+
+  constructor(acc: Accumulators) {
+    const { levels: lv, dens, coef: k, t } = acc
+    this.dl = lv.luma; this.dhi = lv.compMax; this.dlo = lv.compMin; this.dmx = lv.rgbMax; this.dmn = lv.rgbMin
+    this.dr = lv.r; this.dg = lv.g; this.db = lv.b
+    this.cbH = acc.cbHist; this.crH = acc.crHist
+    this.wave = dens !== undefined
+    const none = new Uint32Array(0)
+    this.wl = dens?.luma ?? none; this.wf = dens?.flat ?? none
+    this.wr = dens?.r ?? none; this.wg = dens?.g ?? none; this.wb = dens?.b ?? none
+    this.vec = dens?.vector ?? none
+    this.rowOff = dens?.rowOff ?? new Int32Array(0); this.colOf = dens?.colOf ?? new Int32Array(0)
+    this.uK = k.uK; this.vK = k.vK; this.rK = k.rK; this.bK = k.bK; this.gR = k.gR; this.gB = k.gB
+    this.cbOff = k.cbOff; this.hs = k.hs; this.gamHi = k.gamHi; this.gamLo = k.gamLo
+    this.yMin = t.yMin; this.yMax = t.yMax; this.cbMin = t.cbMin; this.cbMax = t.cbMax; this.crMin = t.crMin; this.crMax = t.crMax
+    this.compMin = t.compMin; this.compMax = t.compMax; this.cMax = t.cMax
+  }
+
+  finish(acc: Accumulators): void {
+    const t = acc.t
+    t.sumY += this.sumY; t.yMin = this.yMin; t.yMax = this.yMax; t.compMin = this.compMin; t.compMax = this.compMax
+    t.cbMin = this.cbMin; t.cbMax = this.cbMax; t.crMin = this.crMin; t.crMax = this.crMax; t.cMax = this.cMax
+    t.compositeOut += this.compOut; t.gamutOut += this.gamOut; t.studioOut += this.studOut
+  }
+}
+
+/**
+ * Runs the fast kernel for `input` when there is one; false leaves the work to the reference
+ * pass. `stripe` is the stripe width in pixels (a multiple of 48, whole v210 groups).
+ */
+export function fastPass(input: FrameInput, matrix: MatrixName, acc: Accumulators, stripe: number): boolean {
+  const k = new Kernel(acc)
+  if (input.kind === 'rgb' && input.bitDepth === 8) rgb8(input.data as Uint8Array, input.width, input.height, input.channels, input.range === 'full', matrix, k, stripe)
+  else if (input.kind === 'uyvy') uyvy(input.data, input.width, input.height, k, stripe)
+  else if (input.kind === 'v210') v210(input.data, input.width, input.height, k, stripe)
+  else return false
+  k.finish(acc)
+  return true
+}
+
+// Each kernel holds, per unit of the current stripe, the unit's source key and how many rows
+// in a row carried it. Units whose run has ended are queued (column, codes, count) and
+// measured a row's worth at a time by one of the two batch functions below, which keep every
+// constant and running total in locals: with no repeats at all (noise, grain) that is one
+// queue entry per unit, and the batch loop is as tight as a plain per-pixel pass.
+
+/** The queue of ended runs: column, the unit's codes, and the run length. */
+class Queue {
+  len = 0
+  readonly x: Int32Array
+  readonly a: Int32Array
+  readonly b: Int32Array
+  readonly c: Int32Array
+  readonly d: Int32Array
+  readonly n: Int32Array
+  constructor(size: number) {
+    this.x = new Int32Array(size); this.a = new Int32Array(size); this.b = new Int32Array(size)
+    this.c = new Int32Array(size); this.d = new Int32Array(size); this.n = new Int32Array(size)
+  }
+}
+
+/**
+ * Measures queued R'G'B' pixels (a, b, c = R, G, B codes) with the reference's arithmetic:
+ * the read of decode.ts, then its rowPass.
+ */
+function rgbBatch(k: Kernel, q: Queue, kr: number, kb: number, cbDiv: number, crDiv: number, scale: number, offset: number): void {
+  const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo, wave, rowOff, colOf } = k
+  const { dl, dhi, dlo, dmx, dmn, dr, dg, db, cbH, crH, wl, wf, wr, wg, wb, vec } = k
+  let sumY = 0; let yMin = k.yMin; let yMax = k.yMax; let compMin = k.compMin; let compMax = k.compMax
+  let cbMin = k.cbMin; let cbMax = k.cbMax; let crMin = k.crMin; let crMax = k.crMax; let cMax = k.cMax
+  let compOut = 0; let gamOut = 0; let studOut = 0
+  const { x: QX, a: QR, b: QG, c: QB, n: QN } = q
+  for (let e = 0, len = q.len; e < len; e++) {
+    const n = QN[e]!
+    const rr = QR[e]! * scale + offset
+    const gg = QG[e]! * scale + offset
+    const bb = QB[e]! * scale + offset
+    const yu = gg + kr * (rr - gg) + kb * (bb - gg)
+    const y = 16 + 219 * yu
+    const pb = (bb - yu) / cbDiv
+    const pr = (rr - yu) / crDiv
+    // Chroma (rowPass, per sample).
+    const cb = 128 + 224 * pb
+    const cr = 128 + 224 * pr
+    if (cb < cbMin) cbMin = cb
+    if (cb > cbMax) cbMax = cb
+    if (cr < crMin) crMin = cr
+    if (cr > crMax) crMax = cr
+    cbH[(cb * hs + cbOff) | 0]! += n
+    crH[(cr * hs + cbOff) | 0]! += n
+    const u = uK * pb; const v = vK * pr
+    const c = 219 * Math.sqrt(u * u + v * v)
+    if (c > cMax) cMax = c
+    const ro = rK * pr; const bo = bK * pb; const go = gR * pr + gB * pb
+    const mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
+    const mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
+    const cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
+    // Luma (rowPass, per pixel).
+    sumY += y * n
+    if (y < yMin) yMin = y
+    if (y > yMax) yMax = y
+    const hi = y + c; const lo = y - c
+    if (hi > compMax) compMax = hi
+    if (lo < compMin) compMin = lo
+    const mx = y + mxo; const mn = y + mno
+    const iy = (y * LV_SCALE + LV_OFF) | 0
+    const ihi = (hi * LV_SCALE + LV_OFF) | 0
+    const ilo = (lo * LV_SCALE + LV_OFF) | 0
+    const ir = ((y + ro) * LV_SCALE + LV_OFF) | 0
+    const ig = ((y + go) * LV_SCALE + LV_OFF) | 0
+    const ib = ((y + bo) * LV_SCALE + LV_OFF) | 0
+    dl[iy]! += n
+    dhi[ihi]! += n
+    dlo[ilo]! += n
+    dmx[(mx * LV_SCALE + LV_OFF) | 0]! += n
+    dmn[(mn * LV_SCALE + LV_OFF) | 0]! += n
+    dr[ir]! += n
+    dg[ig]! += n
+    db[ib]! += n
+    if (hi > COMP_HI || lo < COMP_LO) compOut += n
+    if (mx > gamHi || mn < gamLo) gamOut += n
+    if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut += n
+    if (wave) {
+      let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
+      let vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
+      vc = vc < 0 ? 0 : vc > VS_LAST ? VS_LAST : vc
+      vr = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
+      vec[vr * VECTORSCOPE_SIZE + vc]! += n
+      const col = colOf[QX[e]!]!
+      wl[rowOff[iy]! + col]! += n
+      wf[rowOff[ihi]! + col]! += n
+      wf[rowOff[ilo]! + col]! += n
+      wr[rowOff[ir]! + col]! += n
+      wg[rowOff[ig]! + col]! += n
+      wb[rowOff[ib]! + col]! += n
+    }
+  }
+  q.len = 0
+  k.sumY += sumY; k.yMin = yMin; k.yMax = yMax; k.compMin = compMin; k.compMax = compMax
+  k.cbMin = cbMin; k.cbMax = cbMax; k.crMin = crMin; k.crMax = crMax; k.cMax = cMax
+  k.compOut += compOut; k.gamOut += gamOut; k.studOut += studOut
+}
+
+/**
+ * Measures queued 4:2:2 pairs (a, b = Cb, Cr codes; c, d = Y0, Y1 codes; x = column of Y0)
+ * with the reference's arithmetic: Pb = (Cb − centre) / span, Y' = code · yScale.
+ */
+function pairBatch(k: Kernel, q: Queue, centre: number, span: number, yScale: number): void {
+  const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo, wave, rowOff, colOf } = k
+  const { dl, dhi, dlo, dmx, dmn, dr, dg, db, cbH, crH, wl, wf, wr, wg, wb, vec } = k
+  let sumY = 0; let yMin = k.yMin; let yMax = k.yMax; let compMin = k.compMin; let compMax = k.compMax
+  let cbMin = k.cbMin; let cbMax = k.cbMax; let crMin = k.crMin; let crMax = k.crMax; let cMax = k.cMax
+  let compOut = 0; let gamOut = 0; let studOut = 0
+  const { x: QX, a: QCb, b: QCr, c: QY0, d: QY1, n: QN } = q
+  for (let e = 0, len = q.len; e < len; e++) {
+    const n = QN[e]!
+    const pb = (QCb[e]! - centre) / span
+    const pr = (QCr[e]! - centre) / span
+    const cb = 128 + 224 * pb
+    const cr = 128 + 224 * pr
+    if (cb < cbMin) cbMin = cb
+    if (cb > cbMax) cbMax = cb
+    if (cr < crMin) crMin = cr
+    if (cr > crMax) crMax = cr
+    // The sample stands for both pixels of the pair.
+    cbH[(cb * hs + cbOff) | 0]! += 2 * n
+    crH[(cr * hs + cbOff) | 0]! += 2 * n
+    const u = uK * pb; const v = vK * pr
+    const c = 219 * Math.sqrt(u * u + v * v)
+    if (c > cMax) cMax = c
+    const ro = rK * pr; const bo = bK * pb; const go = gR * pr + gB * pb
+    const mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
+    const mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
+    const cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
+    const x = QX[e]!
+    if (wave) {
+      let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
+      let vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
+      vc = vc < 0 ? 0 : vc > VS_LAST ? VS_LAST : vc
+      vr = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
+      vec[vr * VECTORSCOPE_SIZE + vc]! += 2 * n
+    }
+    for (let h = 0; h < 2; h++) {
+      const y = (h ? QY1[e]! : QY0[e]!) * yScale
+      sumY += y * n
+      if (y < yMin) yMin = y
+      if (y > yMax) yMax = y
+      const hi = y + c; const lo = y - c
+      if (hi > compMax) compMax = hi
+      if (lo < compMin) compMin = lo
+      const mx = y + mxo; const mn = y + mno
+      const iy = (y * LV_SCALE + LV_OFF) | 0
+      const ihi = (hi * LV_SCALE + LV_OFF) | 0
+      const ilo = (lo * LV_SCALE + LV_OFF) | 0
+      const ir = ((y + ro) * LV_SCALE + LV_OFF) | 0
+      const ig = ((y + go) * LV_SCALE + LV_OFF) | 0
+      const ib = ((y + bo) * LV_SCALE + LV_OFF) | 0
+      dl[iy]! += n
+      dhi[ihi]! += n
+      dlo[ilo]! += n
+      dmx[(mx * LV_SCALE + LV_OFF) | 0]! += n
+      dmn[(mn * LV_SCALE + LV_OFF) | 0]! += n
+      dr[ir]! += n
+      dg[ig]! += n
+      db[ib]! += n
+      if (hi > COMP_HI || lo < COMP_LO) compOut += n
+      if (mx > gamHi || mn < gamLo) gamOut += n
+      if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut += n
+      if (wave) {
+        const col = colOf[x + h]!
+        wl[rowOff[iy]! + col]! += n
+        wf[rowOff[ihi]! + col]! += n
+        wf[rowOff[ilo]! + col]! += n
+        wr[rowOff[ir]! + col]! += n
+        wg[rowOff[ig]! + col]! += n
+        wb[rowOff[ib]! + col]! += n
+      }
+    }
+  }
+  q.len = 0
+  k.sumY += sumY; k.yMin = yMin; k.yMax = yMax; k.compMin = compMin; k.compMax = compMax
+  k.cbMin = cbMin; k.cbMax = cbMax; k.crMin = crMin; k.crMax = crMax; k.cMax = cMax
+  k.compOut += compOut; k.gamOut += gamOut; k.studOut += studOut
+}
+
+function rgb8(data: Uint8Array, width: number, height: number, ch: number, full: boolean, matrix: MatrixName, k: Kernel, stripe: number): void {
+  const { kr, kb, cbDiv, crDiv } = MATRICES[matrix]
+  // As decode.ts derives them, so every product is the reference's to the bit.
+  const scale = full ? 1 / 255 : 1 / 219
+  const offset = full ? 0 : -16 / 219
+  const keys = new Int32Array(stripe)
+  const runs = new Int32Array(stripe)
+  const q = new Queue(stripe)
+  const { x: QX, a: QR, b: QG, c: QB, n: QN } = q
+  for (let x0 = 0; x0 < width; x0 += stripe) {
+    const n = Math.min(stripe, width - x0)
+    runs.fill(0)
+    for (let row = 0; row <= height; row++) {
+      let m = 0
+      if (row === height) {
+        // Past the last row: every run still open ends.
+        for (let p = 0; p < n; p++) {
+          const key = keys[p]!
+          QX[m] = x0 + p; QR[m] = key & 255; QG[m] = (key >>> 8) & 255; QB[m] = key >>> 16; QN[m++] = runs[p]!
+        }
+      }
+      else {
+        let i = (row * width + x0) * ch
+        for (let p = 0; p < n; p++, i += ch) {
+          const key = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16)
+          const run = runs[p]!
+          if (key === keys[p] && run) {
+            runs[p] = run + 1
+            continue
+          }
+          if (run) {
+            const old = keys[p]!
+            QX[m] = x0 + p; QR[m] = old & 255; QG[m] = (old >>> 8) & 255; QB[m] = old >>> 16; QN[m++] = run
+          }
+          keys[p] = key
+          runs[p] = 1
+        }
+      }
+      q.len = m
+      if (m) rgbBatch(k, q, kr, kb, cbDiv, crDiv, scale, offset)
+    }
+  }
+}
+
+function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
+  const pairs = stripe >> 1
+  const keys = new Int32Array(pairs)
+  const runs = new Int32Array(pairs)
+  const q = new Queue(pairs)
+  const { x: QX, a: QCb, b: QCr, c: QY0, d: QY1, n: QN } = q
+  for (let x0 = 0; x0 < width; x0 += stripe) {
+    const np = Math.min(stripe, width - x0) >> 1
+    runs.fill(0)
+    for (let row = 0; row <= height; row++) {
+      let m = 0
+      const last = row === height
+      let i = (row * width + x0) * 2
+      for (let j = 0; j < np; j++, i += 4) {
+        const run = runs[j]!
+        if (!last) {
+          const key = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16) | (data[i + 3]! << 24)
+          if (key === keys[j] && run) {
+            runs[j] = run + 1
+            continue
+          }
+          if (run) {
+            const old = keys[j]!
+            QX[m] = x0 + 2 * j; QCb[m] = old & 255; QY0[m] = (old >>> 8) & 255; QCr[m] = (old >>> 16) & 255; QY1[m] = old >>> 24; QN[m++] = run
+          }
+          keys[j] = key
+          runs[j] = 1
+        }
+        else {
+          const old = keys[j]!
+          QX[m] = x0 + 2 * j; QCb[m] = old & 255; QY0[m] = (old >>> 8) & 255; QCr[m] = (old >>> 16) & 255; QY1[m] = old >>> 24; QN[m++] = run
+        }
+      }
+      q.len = m
+      if (m) pairBatch(k, q, 128, 224, 1)
+    }
+  }
+}
+
+function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
+  const stride = v210Stride(width)
+  // Rows start on 128-byte boundaries, so an aligned buffer can be read a word at a time.
+  const words = LITTLE_ENDIAN && data.byteOffset % 4 === 0 ? new Int32Array(data.buffer, data.byteOffset, data.length >> 2) : undefined
+  const groups = stripe / 6
+  const keys = new Int32Array(groups * 4)
+  const runs = new Int32Array(groups)
+  const q = new Queue(stripe >> 1)
+  for (let x0 = 0; x0 < width; x0 += stripe) {
+    const n = Math.min(stripe, width - x0)
+    const ng = Math.ceil(n / 6)
+    runs.fill(0)
+    for (let row = 0; row <= height; row++) {
+      let m = 0
+      const last = row === height
+      let i = row * stride + (x0 / 6) * 16
+      for (let g = 0; g < ng; g++, i += 16) {
+        const ko = g * 4
+        const run = runs[g]!
+        if (!last) {
+          let w0: number, w1: number, w2: number, w3: number
+          if (words) {
+            const j = i >> 2
+            w0 = words[j]!; w1 = words[j + 1]!; w2 = words[j + 2]!; w3 = words[j + 3]!
+          }
+          else {
+            w0 = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16) | (data[i + 3]! << 24)
+            w1 = data[i + 4]! | (data[i + 5]! << 8) | (data[i + 6]! << 16) | (data[i + 7]! << 24)
+            w2 = data[i + 8]! | (data[i + 9]! << 8) | (data[i + 10]! << 16) | (data[i + 11]! << 24)
+            w3 = data[i + 12]! | (data[i + 13]! << 8) | (data[i + 14]! << 16) | (data[i + 15]! << 24)
+          }
+          if (run && w0 === keys[ko] && w1 === keys[ko + 1] && w2 === keys[ko + 2] && w3 === keys[ko + 3]) {
+            runs[g] = run + 1
+            continue
+          }
+          if (run) m = queueGroup(q, m, keys, ko, x0 + g * 6, width, run)
+          keys[ko] = w0; keys[ko + 1] = w1; keys[ko + 2] = w2; keys[ko + 3] = w3
+          runs[g] = 1
+        }
+        else {
+          m = queueGroup(q, m, keys, ko, x0 + g * 6, width, run)
+        }
+      }
+      q.len = m
+      if (m) pairBatch(k, q, 512, 896, 0.25)
+    }
+  }
+}
+
+/**
+ * Queues the pairs of one v210 group: word order Cb0 Y0 Cr0 | Y1 Cb1 Y2 | Cr1 Y3 Cb2 | Y4 Cr2 Y5
+ * (decode.ts); a group at the right edge may hold only two or four pixels of the picture.
+ */
+function queueGroup(q: Queue, m: number, keys: Int32Array, ko: number, x: number, width: number, run: number): number {
+  const w0 = keys[ko]!; const w1 = keys[ko + 1]!; const w2 = keys[ko + 2]!; const w3 = keys[ko + 3]!
+  const { x: QX, a: QCb, b: QCr, c: QY0, d: QY1, n: QN } = q
+  QX[m] = x; QCb[m] = w0 & 1023; QY0[m] = (w0 >>> 10) & 1023; QCr[m] = (w0 >>> 20) & 1023; QY1[m] = w1 & 1023; QN[m++] = run
+  if (x + 2 < width) {
+    QX[m] = x + 2; QCb[m] = (w1 >>> 10) & 1023; QY0[m] = (w1 >>> 20) & 1023; QCr[m] = w2 & 1023; QY1[m] = (w2 >>> 10) & 1023; QN[m++] = run
+  }
+  if (x + 4 < width) {
+    QX[m] = x + 4; QCb[m] = (w2 >>> 20) & 1023; QY0[m] = w3 & 1023; QCr[m] = (w3 >>> 10) & 1023; QY1[m] = (w3 >>> 20) & 1023; QN[m++] = run
+  }
+  return m
+}

@@ -1,0 +1,129 @@
+// The fast kernels (shared/engine/fast.ts: 8-bit R'G'B', UYVY, v210, with vertical runs folded)
+// against the reference pass (analyseFrameReference: the per-pixel arithmetic of DESIGN.md
+// "Measurement", every pixel on its own). Every count, bin, histogram, density and extreme
+// must be identical; the only allowed difference is the luma mean of 8-bit R'G'B' (summed
+// per run rather than per pixel), which may differ in the last bits of a double.
+import fc from 'fast-check'
+import { describe, expect, it } from 'vitest'
+import { analyseFrame, packV210 } from '../../../shared/engine/index'
+import { analyseFrameReference } from '../../../shared/engine/analyse'
+import type { FrameAnalysis, FrameInput, MatrixName } from '../../../shared/engine/index'
+
+/**
+ * A frame whose rows are drawn from a few template rows with some samples changed, so runs
+ * down a column start and end at varied places, as well as frames of pure noise. Widths reach
+ * past the 96-pixel stripes and are not all multiples of six (partial v210 groups).
+ */
+const shape = fc.record({
+  w: fc.integer({ min: 1, max: 120 }).map(n => n * 2),
+  h: fc.integer({ min: 1, max: 14 }),
+  templates: fc.integer({ min: 1, max: 4 }),
+  change: fc.constantFrom(0, 0.05, 0.3, 1),
+  seed: fc.integer(),
+})
+
+function sampler(seed: number) {
+  let s = seed >>> 0
+  return () => (s = (Math.imul(s, 1664525) + 1013904223) >>> 0) / 4294967296
+}
+
+/** Sample index (row, i) → a code, from templates with changes. */
+function codes(h: number, perRow: number, templates: number, change: number, rnd: () => number, max: number): Int32Array {
+  const t = Array.from({ length: templates }, () => Array.from({ length: perRow }, () => Math.floor(rnd() * (max + 1))))
+  const out = new Int32Array(h * perRow)
+  for (let row = 0; row < h; row++) {
+    const tr = t[Math.floor(rnd() * templates)]!
+    for (let i = 0; i < perRow; i++) out[row * perRow + i] = rnd() < change ? Math.floor(rnd() * (max + 1)) : tr[i]!
+  }
+  return out
+}
+
+const frames = fc.tuple(shape, fc.constantFrom('rgb3', 'rgb4', 'rgbStudio', 'uyvy', 'v210')).map(([{ w, h, templates, change, seed }, kind]): FrameInput => {
+  const rnd = sampler(seed)
+  if (kind.startsWith('rgb')) {
+    const ch = kind === 'rgb4' ? 4 : 3
+    // Whole pixels come from the templates, so runs cover all three codes.
+    const px = codes(h, w, templates, change, rnd, 0xffffff)
+    const data = new Uint8Array(w * h * ch)
+    for (let i = 0; i < w * h; i++) {
+      data[i * ch] = px[i]! & 255; data[i * ch + 1] = (px[i]! >> 8) & 255; data[i * ch + 2] = px[i]! >> 16
+      if (ch === 4) data[i * ch + 3] = Math.floor(rnd() * 256)
+    }
+    return { kind: 'rgb', data, width: w, height: h, channels: ch, bitDepth: 8, range: kind === 'rgbStudio' ? 'studio' : 'full' }
+  }
+  if (kind === 'uyvy') {
+    const c = codes(h, w * 2, templates, change, rnd, 255)
+    return { kind: 'uyvy', data: Uint8Array.from(c), width: w, height: h }
+  }
+  const y = codes(h, w, templates, change, rnd, 1023)
+  const cb = codes(h, w / 2, templates, change, rnd, 1023)
+  const cr = codes(h, w / 2, templates, change, rnd, 1023)
+  return { kind: 'v210', data: packV210(y, cb, cr, w, h), width: w, height: h }
+})
+
+/** Index of the first difference of two typed arrays, −1 if none (toEqual is slow on megabytes). */
+function firstDiff(a: Uint32Array, b: Uint32Array): number {
+  if (a.length !== b.length) return -2
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return i
+  return -1
+}
+
+function expectSame(fast: FrameAnalysis, ref: FrameAnalysis, input: FrameInput): void {
+  expect(fast.waveform === undefined).toBe(ref.waveform === undefined)
+  if (fast.waveform && ref.waveform) {
+    const fw = fast.waveform; const rw = ref.waveform
+    for (const [f, r] of [[fw.luma, rw.luma], [fw.flat, rw.flat], [fw.rgb.r, rw.rgb.r], [fw.rgb.g, rw.rgb.g], [fw.rgb.b, rw.rgb.b], [fast.vectorscope!.data, ref.vectorscope!.data]] as const) {
+      expect(firstDiff(f, r)).toBe(-1)
+    }
+    expect({ ...fw, luma: 0, flat: 0, rgb: 0 }).toEqual({ ...rw, luma: 0, flat: 0, rgb: 0 })
+    expect(fast.vectorscope!.size).toBe(ref.vectorscope!.size)
+    fast = { ...fast, waveform: undefined, vectorscope: undefined }
+    ref = { ...ref, waveform: undefined, vectorscope: undefined }
+  }
+  if (input.kind === 'rgb') {
+    expect(fast.luma.mean).toBeCloseTo(ref.luma.mean, 9)
+    expect(fast.lumaIre.mean).toBeCloseTo(ref.lumaIre.mean, 9)
+    const strip = (a: FrameAnalysis) => ({ ...a, luma: { ...a.luma, mean: 0 }, lumaIre: { ...a.lumaIre, mean: 0 } })
+    expect(strip(fast)).toEqual(strip(ref))
+  }
+  else {
+    expect(fast).toEqual(ref)
+  }
+}
+
+describe('fast kernels equal the reference pass', () => {
+  it('statistics, distributions, histograms and verdict, for either matrix', () => {
+    fc.assert(fc.property(frames, fc.constantFrom<MatrixName>('601', '709'), (input, matrix) => {
+      expectSame(analyseFrame(input, { matrix }), analyseFrameReference(input, { matrix }), input)
+    }), { numRuns: 150 })
+  })
+
+  it('waveform and vectorscope densities too', () => {
+    fc.assert(fc.property(frames, fc.constantFrom<MatrixName>('601', '709'), (input, matrix) => {
+      expectSame(analyseFrame(input, { matrix, keepDensities: true }), analyseFrameReference(input, { matrix, keepDensities: true }), input)
+    }), { numRuns: 60 })
+  })
+
+  it('a v210 buffer not aligned to four bytes reads the same as an aligned one', () => {
+    const w = 100; const h = 3
+    const rnd = sampler(7)
+    const y = codes(h, w, 2, 0.2, rnd, 1023); const cb = codes(h, w / 2, 2, 0.2, rnd, 1023); const cr = codes(h, w / 2, 2, 0.2, rnd, 1023)
+    const packed = packV210(y, cb, cr, w, h)
+    const shifted = new Uint8Array(packed.length + 1).subarray(1)
+    shifted.set(packed)
+    const a = analyseFrame({ kind: 'v210', data: shifted, width: w, height: h }, { keepDensities: true })
+    expect(a).toEqual(analyseFrameReference({ kind: 'v210', data: packed, width: w, height: h }, { keepDensities: true }))
+  })
+
+  it('a whole frame of one colour (one run per column) counts every pixel once', () => {
+    const w = 300; const h = 40
+    const data = new Uint8Array(w * h * 3)
+    for (let i = 0; i < w * h; i++) { data[i * 3] = 191; data[i * 3 + 1] = 191; data[i * 3 + 2] = 0 }
+    const input: FrameInput = { kind: 'rgb', data, width: w, height: h, channels: 3, bitDepth: 8, range: 'full' }
+    const a = analyseFrame(input, { keepDensities: true })
+    expectSame(a, analyseFrameReference(input, { keepDensities: true }), input)
+    // 75 % yellow: Y' = 0.886 · 0.75 (BT.601-7 §2.5, REFERENCE.md §1): one level bin holds all.
+    expect(Math.max(...a.histograms.levels.luma)).toBe(w * h)
+    expect(a.luma.min).toBeCloseTo(16 + 219 * 0.886 * 191 / 255, 9)
+  })
+})
