@@ -1,4 +1,5 @@
 import { EngineInputError, makeRowSource, STRIPE_ALIGN } from './decode'
+import type { RowSource } from './decode'
 import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
 import type { Accumulators, Coef, Densities, Totals } from './accumulate'
 import { fastPass } from './fast'
@@ -80,10 +81,6 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
     }
   }
 
-  const cw = (width + (1 << src.chromaShift) - 1) >> src.chromaShift
-  const pbRow = new Float64Array(cw)
-  const prRow = new Float64Array(cw)
-  const yRow = new Float64Array(width)
   const t: Totals = {
     sumY: 0, yMin: Infinity, yMax: -Infinity, cbMin: Infinity, cbMax: -Infinity, crMin: Infinity, crMax: -Infinity,
     compMin: Infinity, compMax: -Infinity, cMax: 0, compositeOut: 0, gamutOut: 0, studioOut: 0,
@@ -102,22 +99,12 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
   if (fast && fastPass(input, matrix, acc, DENSITY_STRIPE)) {
     // The fast kernel has filled every accumulator.
   }
-  else if (dens) {
-    // In vertical stripes, so the part of the waveform densities a stripe touches stays in
-    // cache: whole rows would spread six increments per pixel over megabytes.
-    for (let x0 = 0; x0 < width; x0 += DENSITY_STRIPE) {
-      const x1 = Math.min(width, x0 + DENSITY_STRIPE)
-      for (let row = 0; row < height; row++) {
-        src.readYcc(row, yRow, pbRow, prRow, x0, x1)
-        rowPassWithDensities(yRow, pbRow, prRow, x0, x1 - x0, src.chromaShift, coef, cbHist, crHist, levels, t, dens)
-      }
-    }
-  }
   else {
-    for (let row = 0; row < height; row++) {
-      src.readYcc(row, yRow, pbRow, prRow, 0, width)
-      rowPass(yRow, pbRow, prRow, width, src.chromaShift, coef, cbHist, crHist, levels, t)
-    }
+    const cw = (width + (1 << src.chromaShift) - 1) >> src.chromaShift
+    const pbRow = new Float64Array(cw)
+    const prRow = new Float64Array(cw)
+    const yRow = new Float64Array(width)
+    referencePass(src, yRow, pbRow, prRow, coef, cbHist, crHist, levels, t, dens)
   }
 
   const fold = (h: Uint32Array): Uint32Array => {
@@ -184,6 +171,31 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
     out.vectorscope = { size: VECTORSCOPE_SIZE, extent: VECTORSCOPE_EXTENT, data: dens.vector }
   }
   return out
+}
+
+/** The reference pass: the source read a row (or stripe) at a time into the engine's working form. */
+function referencePass(
+  src: RowSource, yRow: Float64Array, pbRow: Float64Array, prRow: Float64Array, coef: Coef,
+  cbHist: Uint32Array, crHist: Uint32Array, levels: LevelDistributions, t: Totals, dens: Densities | undefined,
+): void {
+  const { width, height } = src
+  if (dens) {
+    // In vertical stripes, so the part of the waveform densities a stripe touches stays in
+    // cache: whole rows would spread six increments per pixel over megabytes.
+    for (let x0 = 0; x0 < width; x0 += DENSITY_STRIPE) {
+      const x1 = Math.min(width, x0 + DENSITY_STRIPE)
+      for (let row = 0; row < height; row++) {
+        src.readYcc(row, yRow, pbRow, prRow, x0, x1)
+        rowPassWithDensities(yRow, pbRow, prRow, x0, x1 - x0, src.chromaShift, coef, cbHist, crHist, levels, t, dens)
+      }
+    }
+  }
+  else {
+    for (let row = 0; row < height; row++) {
+      src.readYcc(row, yRow, pbRow, prRow, 0, width)
+      rowPass(yRow, pbRow, prRow, width, src.chromaShift, coef, cbHist, crHist, levels, t)
+    }
+  }
 }
 
 /**

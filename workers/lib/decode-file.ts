@@ -56,7 +56,9 @@ export function decodeRaw(bytes: Uint8Array, kind: RawKind, width: number | unde
 }
 
 export async function decodeStill(bytes: Uint8Array, range: SourceRange, maxPixels = MAX_INPUT_PIXELS): Promise<FrameInput> {
-  const open = () => sharp(bytes, { limitInputPixels: maxPixels, failOn: 'error' })
+  // A level check measures the codes as written. An embedded ICC profile (Display P3, a camera
+  // profile) would otherwise have libvips convert the codes to sRGB before they are measured.
+  const open = () => sharp(bytes, { limitInputPixels: maxPixels, failOn: 'error', ignoreIcc: true })
   let meta: Metadata
   try {
     meta = await open().metadata()
@@ -69,11 +71,15 @@ export async function decodeStill(bytes: Uint8Array, range: SourceRange, maxPixe
   }
   if (!meta.width || !meta.height) throw new DecodeFileError('picture has no size')
   if (meta.width * meta.height > maxPixels) throw new DecodeFileError(`${meta.width}×${meta.height} is more than ${maxPixels} pixels`)
+  // CMYK codes are ink amounts, not R'G'B' video levels; any conversion would invent the levels.
+  if (meta.space === 'cmyk') {
+    throw new DecodeFileError('the picture is CMYK: a level check needs R\'G\'B\' or greyscale codes (export the frame as RGB)')
+  }
   const deep = meta.depth !== undefined && meta.depth !== 'uchar' && meta.depth !== 'char'
   try {
     if (deep) {
       // A plain .raw({ depth: 'ushort' }) scales 16-bit input down to 0–255 (STACK.md): keep
-      // the pipeline in rgb16 so the codes arrive untouched.
+      // the pipeline in rgb16 so the codes arrive untouched (greyscale is copied to R, G and B).
       const { data, info } = await open().pipelineColourspace('rgb16').toColourspace('rgb16').removeAlpha()
         .raw({ depth: 'ushort' }).toBuffer({ resolveWithObject: true })
       if (info.channels !== 3) throw new DecodeFileError(`expected 3 colour channels after conversion, got ${info.channels}`)
@@ -83,6 +89,7 @@ export async function decodeStill(bytes: Uint8Array, range: SourceRange, maxPixe
         : new Uint16Array(Uint8Array.prototype.slice.call(data).buffer)
       return { kind: 'rgb', data: words, width: info.width, height: info.height, channels: 3, bitDepth: 16, range }
     }
+    // With the profile ignored, sRGB is no conversion for R'G'B' and a copy to R, G, B for grey.
     const { data, info } = await open().toColourspace('srgb').removeAlpha().raw().toBuffer({ resolveWithObject: true })
     if (info.channels !== 3) throw new DecodeFileError(`expected 3 colour channels after conversion, got ${info.channels}`)
     const bytes8 = new Uint8Array(data.buffer, data.byteOffset, data.length)

@@ -6,6 +6,8 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { promisify } from 'node:util'
+import { readFileSync } from 'node:fs'
+import sharp from 'sharp'
 import { afterAll, describe, expect, it } from 'vitest'
 import { decodeFile, DecodeFileError, MAX_INPUT_PIXELS } from '../../../workers/lib/decode-file'
 import { packV210 } from '../../../shared/engine/index'
@@ -94,6 +96,91 @@ describe('decodeFile', () => {
     const png = writeWithFfmpeg(new Uint8Array(W * H * 3), 'rgb24', 'small.png', [])
     await expect(decodeFile(png, { maxPixels: W * H - 1 })).rejects.toThrow(DecodeFileError)
     expect(MAX_INPUT_PIXELS).toBeGreaterThanOrEqual(7680 * 4320)
+  })
+})
+
+/**
+ * The chunk bytes (length, type, data, CRC) of a PNG's iCCP chunk (PNG spec §11.3.3.3: the
+ * embedded ICC profile), or undefined.
+ */
+function iccpChunk(png: Uint8Array): Uint8Array | undefined {
+  const dv = new DataView(png.buffer, png.byteOffset, png.length)
+  for (let o = 8; o + 8 <= png.length;) {
+    const len = dv.getUint32(o)
+    const type = String.fromCharCode(...png.subarray(o + 4, o + 8))
+    if (type === 'iCCP') return png.slice(o, o + 12 + len)
+    o += 12 + len
+  }
+  return undefined
+}
+
+/** The PNG with an iCCP chunk put right after IHDR (which the spec requires to come first). */
+function withChunk(png: Uint8Array, chunk: Uint8Array): Uint8Array {
+  const ihdrEnd = 8 + 12 + new DataView(png.buffer, png.byteOffset).getUint32(8)
+  const out = new Uint8Array(png.length + chunk.length)
+  out.set(png.subarray(0, ihdrEnd)); out.set(chunk, ihdrEnd); out.set(png.subarray(ihdrEnd), ihdrEnd + chunk.length)
+  return out
+}
+
+describe('decodeFile: colour profiles and colour models', () => {
+  // Codes across the range, with saturated primaries where a P3 → sRGB conversion moves them most.
+  const src8 = new Uint8Array(W * H * 3)
+  for (let i = 0; i < W * H; i++) { src8[i * 3] = (i * 7) % 256; src8[i * 3 + 1] = i % 3 ? 0 : 255; src8[i * 3 + 2] = (i * 13) % 256 }
+
+  async function p3Chunk(): Promise<Uint8Array> {
+    // libvips's built-in Display P3 profile, attached by sharp; only its iCCP chunk is kept.
+    const png = await sharp(Buffer.from(src8), { raw: { width: W, height: H, channels: 3 } }).withIccProfile('p3').png().toBuffer()
+    const chunk = iccpChunk(png)
+    if (!chunk) throw new Error('sharp wrote no iCCP chunk')
+    return chunk
+  }
+
+  it('an 8-bit PNG with a Display P3 profile decodes to the codes as written, not colour-managed ones', async () => {
+    const plain = readFileSync(writeWithFfmpeg(src8, 'rgb24', 'plain8.png', []))
+    const path = join(dir, 'p3-8.png')
+    writeFileSync(path, withChunk(plain, await p3Chunk()))
+    expect((await sharp(path).metadata()).hasProfile).toBe(true)
+    // The check can fail: a colour-managed decode of this file moves the codes.
+    const managed = await sharp(path).toColourspace('srgb').raw().toBuffer()
+    expect(Buffer.compare(managed, Buffer.from(src8))).not.toBe(0)
+    const input = await decodeFile(path)
+    if (input.kind !== 'rgb') throw new Error('expected RGB')
+    expect(input.bitDepth).toBe(8)
+    expect(Array.from(input.data)).toEqual(Array.from(src8))
+  })
+
+  it('a 16-bit PNG with a Display P3 profile decodes to the codes as written', async () => {
+    const src = ramp16()
+    const plain = readFileSync(writeWithFfmpeg(new Uint8Array(src.buffer), 'rgb48le', 'plain16.png', ['-pix_fmt', 'rgb48be']))
+    const path = join(dir, 'p3-16.png')
+    writeFileSync(path, withChunk(plain, await p3Chunk()))
+    expect((await sharp(path).metadata()).hasProfile).toBe(true)
+    const input = await decodeFile(path)
+    if (input.kind !== 'rgb') throw new Error('expected RGB')
+    expect(input.bitDepth).toBe(16)
+    expect(Array.from(input.data)).toEqual(Array.from(src))
+  })
+
+  it('greyscale stills are measured as R\' = G\' = B\' = the grey code, at 8 and 16 bits', async () => {
+    const grey8 = new Uint8Array(W * H).map((_, i) => (i * 5) % 256)
+    const g8 = await decodeFile(writeWithFfmpeg(grey8, 'gray', 'grey8.png', []))
+    if (g8.kind !== 'rgb') throw new Error('expected RGB')
+    expect(g8.bitDepth).toBe(8)
+    expect(Array.from(g8.data)).toEqual(Array.from(grey8).flatMap(v => [v, v, v]))
+    const grey16 = new Uint16Array(W * H).map((_, i) => (i * 1031) % 65536)
+    const g16 = await decodeFile(writeWithFfmpeg(new Uint8Array(grey16.buffer), 'gray16le', 'grey16.png', ['-pix_fmt', 'gray16be']))
+    if (g16.kind !== 'rgb') throw new Error('expected RGB')
+    expect(g16.bitDepth).toBe(16)
+    expect(Array.from(g16.data)).toEqual(Array.from(grey16).flatMap(v => [v, v, v]))
+  })
+
+  it('refuses CMYK stills with the reason', async () => {
+    const path = join(dir, 'cmyk.jpg')
+    await sharp(Buffer.from(src8), { raw: { width: W, height: H, channels: 3 } }).toColourspace('cmyk').jpeg().toFile(path)
+    expect((await sharp(path).metadata()).space).toBe('cmyk')
+    const err = await decodeFile(path).catch((e: unknown) => e)
+    expect(err).toBeInstanceOf(DecodeFileError)
+    expect((err as Error).message).toMatch(/CMYK/)
   })
 })
 
