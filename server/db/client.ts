@@ -21,3 +21,10 @@ export function createDb(url: string, connectionLimit = 10) {
 
 export type Db = ReturnType<typeof createDb>['db']
 export { schema }
+
+/** The id of the row an insert created (`$returningId()` types its rows as possibly absent). */
+export function firstId(rows: { id: number }[]): number {
+  const row = rows[0]
+  if (!row) throw new Error('the insert returned no id')
+  return row.id
+}

@@ -4,7 +4,7 @@ import { and, eq } from 'drizzle-orm'
 import { hashPassword } from './password'
 import { Queue } from 'bullmq'
 import { Redis } from 'ioredis'
-import { createDb, type Db } from './client'
+import { firstId, createDb, type Db } from './client'
 import { DEMO_REELS } from './demo-frames'
 import { createFrame, queueFrame } from '../lib/frames'
 import { inspectUpload } from '../lib/intake'
@@ -29,7 +29,7 @@ async function seedFrames(db: Db, teamId: number, productionId: number, userId: 
     for (const r of DEMO_REELS) {
       let [reel] = await db.select().from(t.reels).where(and(eq(t.reels.productionId, productionId), eq(t.reels.name, r.name))).limit(1)
       if (!reel) {
-        const [{ id }] = await db.insert(t.reels).values({ teamId, productionId, name: r.name, sourceLabel: r.sourceLabel, sourceRange: r.sourceRange, createdBy: userId }).$returningId()
+        const id = firstId(await db.insert(t.reels).values({ teamId, productionId, name: r.name, sourceLabel: r.sourceLabel, sourceRange: r.sourceRange, createdBy: userId }).$returningId())
         ;[reel] = await db.select().from(t.reels).where(eq(t.reels.id, id))
       }
       for (const f of r.frames) {
@@ -53,7 +53,7 @@ const { db, pool } = createDb(process.env.NUXT_DATABASE_URL ?? '', 2)
 try {
   let [team] = await db.select().from(t.teams).where(eq(t.teams.name, DEMO_TEAM)).limit(1)
   if (!team) {
-    const [{ id }] = await db.insert(t.teams).values({ name: DEMO_TEAM }).$returningId()
+    const id = firstId(await db.insert(t.teams).values({ name: DEMO_TEAM }).$returningId())
     ;[team] = await db.select().from(t.teams).where(eq(t.teams.id, id))
   }
   let [spec] = await db.select().from(t.deliverySpecs).where(eq(t.deliverySpecs.teamId, team!.id)).orderBy(t.deliverySpecs.id).limit(1)
@@ -65,7 +65,7 @@ try {
   for (const u of DEMO_USERS) {
     let [user] = await db.select().from(t.users).where(eq(t.users.email, u.email)).limit(1)
     if (!user) {
-      const [{ id }] = await db.insert(t.users).values({ email: u.email, name: u.name, passwordHash: await hashPassword(u.password) }).$returningId()
+      const id = firstId(await db.insert(t.users).values({ email: u.email, name: u.name, passwordHash: await hashPassword(u.password) }).$returningId())
       ;[user] = await db.select().from(t.users).where(eq(t.users.id, id))
     }
     if (u.role === 'owner') ownerId = user!.id

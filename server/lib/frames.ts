@@ -4,7 +4,7 @@
 import { createHash } from 'node:crypto'
 import { and, eq, sql } from 'drizzle-orm'
 import type { Queue } from 'bullmq'
-import type { Db } from '../db/client'
+import { firstId, type Db } from '../db/client'
 import * as t from '../db/schema'
 import { analyseJobId, type AnalyseJob } from '../../shared/utils/queues'
 import type { Inspected } from './intake'
@@ -42,10 +42,10 @@ export async function createFrame(db: Db, storage: Storage, f: NewFrame): Promis
     const [again] = await tx.select().from(t.frames).where(and(eq(t.frames.reelId, f.reelId), eq(t.frames.sha256, hash))).limit(1)
     if (again) return { frame: again, duplicate: true }
     await tx.update(t.reels).set({ nextSeq: sql`${t.reels.nextSeq} + 1` }).where(eq(t.reels.id, f.reelId))
-    const [{ id }] = await tx.insert(t.frames).values({
+    const id = firstId(await tx.insert(t.frames).values({
       teamId: f.teamId, reelId: f.reelId, seq: reel.nextSeq, name: f.name, objectKey, sha256: hash, bytes: f.bytes.length,
       format: f.inspected.format, width: f.inspected.width, height: f.inspected.height, status: 'queued', queuedAt: new Date(), uploadedBy: f.uploadedBy,
-    }).$returningId()
+    }).$returningId())
     const [frame] = await tx.select().from(t.frames).where(eq(t.frames.id, id))
     return { frame: frame!, duplicate: false }
   })

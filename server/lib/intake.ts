@@ -76,7 +76,7 @@ export async function inspectUpload(bytes: Uint8Array, declared: { format: Frame
   }
   const format = sniffFormat(bytes)
   if (!format) throw new IntakeError(415, `Unsupported file: this is ${describeOther(bytes)}. Linewise reads PNG, TIFF, JPEG and WebP stills, and raw UYVY or v210.`)
-  let meta: sharp.Metadata
+  let meta: Awaited<ReturnType<ReturnType<typeof sharp>['metadata']>>
   try {
     // Header only: limitInputPixels refuses a decompression bomb before any pixel is decoded.
     meta = await sharp(bytes, { limitInputPixels: false }).metadata()

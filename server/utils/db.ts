@@ -1,4 +1,4 @@
-import { createDb, type Db } from '../db/client'
+import { createDb, firstId, type Db } from '../db/client'
 
 export * as tables from '../db/schema'
 
@@ -9,3 +9,5 @@ export function useDb(): Db {
   instance ??= createDb(useRuntimeConfig().databaseUrl).db
   return instance
 }
+
+export { firstId }

@@ -17,9 +17,9 @@ export async function lockMembership(tx: Tx, teamId: number, userId: number, new
     .where(and(eq(tables.memberships.teamId, teamId), eq(tables.memberships.userId, userId))).for('update')
   if (!m) throw createError({ statusCode: 404, statusMessage: 'Not found' })
   if (m.role === 'owner' && newRole !== 'owner') {
-    const [{ owners }] = await tx.select({ owners: count() }).from(tables.memberships)
+    const [row] = await tx.select({ owners: count() }).from(tables.memberships)
       .where(and(eq(tables.memberships.teamId, teamId), eq(tables.memberships.role, 'owner'))).for('update')
-    if (owners <= 1) throw createError({ statusCode: 409, statusMessage: 'A team needs at least one owner: make someone else owner first' })
+    if ((row?.owners ?? 0) <= 1) throw createError({ statusCode: 409, statusMessage: 'A team needs at least one owner: make someone else owner first' })
   }
   return m
 }

@@ -18,7 +18,7 @@ export default defineEventHandler(async (event) => {
       }
     } else {
       if (!name || !passwordHash) throw createError({ statusCode: 400, statusMessage: 'Enter your name and a password to create your account' })
-      const [{ id }] = await tx.insert(tables.users).values({ email: inv.email, name, passwordHash }).$returningId()
+      const id = firstId(await tx.insert(tables.users).values({ email: inv.email, name, passwordHash }).$returningId())
       ;[user] = await tx.select().from(tables.users).where(eq(tables.users.id, id))
     }
     await tx.insert(tables.memberships).values({ teamId: inv.teamId, userId: user!.id, role: inv.role })

@@ -6,7 +6,7 @@ export default defineEventHandler(async (event) => {
   const { production, user } = await requireProduction(event, id, 'upload')
   const body = await readValidatedBody(event, ReelBody.parse)
   const reelId = await useDb().transaction(async (tx) => {
-    const [{ id: reelId }] = await tx.insert(tables.reels).values({ ...body, teamId: production.teamId, productionId: production.id, createdBy: user.id }).$returningId()
+    const reelId = firstId(await tx.insert(tables.reels).values({ ...body, teamId: production.teamId, productionId: production.id, createdBy: user.id }).$returningId())
     await audit({ teamId: production.teamId, actorId: user.id, action: 'reel.created', subjectType: 'reel', subjectId: reelId, details: body }, tx)
     return reelId
   })

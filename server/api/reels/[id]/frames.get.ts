@@ -31,7 +31,7 @@ export default defineEventHandler(async (event) => {
   if (q.q) where.push(like(tables.frames.name, `%${q.q.replace(/[%_\\]/g, '\\$&')}%`))
   const db = useDb()
   const cond = and(...where)
-  const [{ total }] = await db.select({ total: sql<number>`count(*)` }).from(tables.frames)
+  const [counted] = await db.select({ total: sql<number>`count(*)` }).from(tables.frames)
     .leftJoin(tables.analyses, eq(tables.analyses.frameId, tables.frames.id))
     .leftJoin(tables.decisions, eq(tables.decisions.frameId, tables.frames.id)).where(cond)
   const order = q.dir === 'asc' ? asc(SORTS[q.sort]) : desc(SORTS[q.sort])
@@ -49,7 +49,7 @@ export default defineEventHandler(async (event) => {
     .leftJoin(tables.users, eq(tables.users.id, tables.decisions.decidedBy))
     .where(cond).orderBy(order, asc(tables.frames.seq)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
   return {
-    page: q.page, pageSize: q.pageSize, total: Number(total),
+    page: q.page, pageSize: q.pageSize, total: Number(counted?.total ?? 0),
     frames: rows.map(({ decision, decisionNote, decidedAt, decidedById, decidedByName, ...r }) => ({
       ...r,
       thumbUrl: r.status === 'done' ? `/api/frames/${r.id}/images/thumb` : null,

@@ -25,10 +25,10 @@ export default defineEventHandler(async (event) => {
       if ((f.format === 'uyvy' || f.format === 'v210') && (!f.rawWidth || !f.rawHeight)) {
         throw new IntakeError(422, `Raw ${f.format} needs its width and height`)
       }
-      const [{ id: uploadId }] = await db.insert(tables.uploads).values({
+      const uploadId = firstId(await db.insert(tables.uploads).values({
         teamId: reel.teamId, reelId: reel.id, userId: user.id, objectKey: '', name, bytes: f.size, format: f.format,
         rawWidth: f.rawWidth ?? null, rawHeight: f.rawHeight ?? null, expiresAt,
-      }).$returningId()
+      }).$returningId())
       const objectKey = keys.upload(reel.teamId, reel.id, uploadId)
       if (f.size > UPLOAD_LIMITS.multipartThreshold) {
         const multipartId = await storage.startMultipart(objectKey)

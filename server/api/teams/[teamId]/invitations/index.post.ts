@@ -16,7 +16,7 @@ export default defineEventHandler(async (event) => {
   const [team] = await db.select().from(tables.teams).where(eq(tables.teams.id, teamId))
   const { token, hash } = newToken()
   const expiresAt = new Date(Date.now() + INVITATION_DAYS * 86_400_000)
-  const [{ id }] = await db.insert(tables.invitations).values({ teamId, email, role, tokenHash: hash, invitedBy: user.id, expiresAt }).$returningId()
+  const id = firstId(await db.insert(tables.invitations).values({ teamId, email, role, tokenHash: hash, invitedBy: user.id, expiresAt }).$returningId())
   await audit({ teamId, actorId: user.id, action: 'invitation.created', subjectType: 'invitation', subjectId: id, details: { email, role } })
   try {
     await queueMail(mailWithLink({

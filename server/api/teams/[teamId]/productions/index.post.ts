@@ -9,7 +9,7 @@ export default defineEventHandler(async (event) => {
     // A new production is measured against the team's first spec until an owner picks another.
     const [spec] = await tx.select({ id: tables.deliverySpecs.id }).from(tables.deliverySpecs)
       .where(eq(tables.deliverySpecs.teamId, teamId)).orderBy(asc(tables.deliverySpecs.id)).limit(1)
-    const [{ id }] = await tx.insert(tables.productions).values({ ...body, teamId, createdBy: user.id, deliverySpecId: spec?.id ?? null }).$returningId()
+    const id = firstId(await tx.insert(tables.productions).values({ ...body, teamId, createdBy: user.id, deliverySpecId: spec?.id ?? null }).$returningId())
     await audit({ teamId, actorId: user.id, action: 'production.created', subjectType: 'production', subjectId: id, details: body }, tx)
     return id
   })
