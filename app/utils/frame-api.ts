@@ -4,7 +4,7 @@ import type { Decision } from '../../shared/utils/decisions'
 import type { Role } from '../../shared/utils/roles'
 import type { FrameFormat, FrameStatus } from '../../shared/utils/uploads'
 
-export type FrameImageKind = 'thumb' | 'overlay' | 'waveform-luma' | 'waveform-flat' | 'waveform-rgb' | 'vectorscope'
+export type FrameImageKind = 'thumb' | 'picture' | 'overlay' | 'waveform-luma' | 'waveform-flat' | 'waveform-rgb' | 'vectorscope'
 
 export interface FrameHistogramsJson {
   bins: number

@@ -58,7 +58,7 @@ describe('upload → analysis', () => {
       const direct = analysisJson(analyseFrame(await decodeBytes(f.bytes, { range: 'full' }), { matrix: '601', spec }), spec.name)
       const { specVersion: _v, analysedAt: _a, durationMs: _d, histograms: _h, images, ...api } = got.analysis
       expect(api).toEqual(direct)
-      expect(Object.keys(images).sort()).toEqual(['overlay', 'thumb', 'vectorscope', 'waveform-flat', 'waveform-luma', 'waveform-rgb'])
+      expect(Object.keys(images).sort()).toEqual(['overlay', 'picture', 'thumb', 'vectorscope', 'waveform-flat', 'waveform-luma', 'waveform-rgb'])
     }
     // The list shows the same verdicts, in upload order.
     const list = await editor.get(`/api/reels/${reelId}/frames?pageSize=50`)
@@ -100,6 +100,11 @@ describe('upload → analysis', () => {
     expect(img.status).toBe(200)
     expect(img.headers.get('content-type')).toBe('image/png')
     expect([...new Uint8Array(await img.arrayBuffer()).subarray(0, 4)]).toEqual([0x89, 0x50, 0x4e, 0x47])
+    // The viewing copy of a raw capture is made on first request: a JPEG at the frame's size.
+    const pic = await fetch(new URL(`/api/frames/${fa.frame.id}/images/picture`, APP_URL()), { headers: { cookie: editor.cookieHeader() } })
+    expect(pic.headers.get('content-type')).toBe('image/jpeg')
+    const meta = await (await import('sharp')).default(new Uint8Array(await pic.arrayBuffer())).metadata()
+    expect([meta.width, meta.height]).toEqual([720, 486])
   })
 
   it('measures a studio-range reel with its own range setting', async () => {

@@ -35,7 +35,8 @@ export default defineEventHandler(async (event) => {
           analysedAt: a.createdAt,
           durationMs: a.durationMs,
           histograms: a.histograms,
-          images: Object.fromEntries((a.images as string[]).map((k) => [k, `/api/frames/${frame.id}/images/${k}`])),
+          // `picture` (the viewing copy) is made on first request, so it is not in the stored list.
+          images: Object.fromEntries([...(a.images as string[]), 'picture'].map((k) => [k, `/api/frames/${frame.id}/images/${k}`])),
         }
       : null,
   }
