@@ -60,13 +60,14 @@ export async function signoffHistory(db: Db, reelId: number) {
 /**
  * Everything the sheet of one sign-off prints, read in one consistent snapshot. The first
  * statement is a locking read of the reel: it waits out a reopen in progress and holds off
- * the next one, and the plain reads after it see the state as of that lock.
+ * the next one, and the plain reads after it see the state as of that lock. (An exclusive
+ * lock: MariaDB has no FOR SHARE, and the reads take milliseconds.)
  */
 export async function loadSheetContext(db: Db, signoffId: number) {
   return db.transaction(async (tx) => {
     const [locked] = await tx.select({ reelId: t.reels.id }).from(t.reels)
       .innerJoin(t.signoffs, eq(t.signoffs.reelId, t.reels.id))
-      .where(eq(t.signoffs.id, signoffId)).for('share')
+      .where(eq(t.signoffs.id, signoffId)).for('update')
     if (!locked) return null
     const [head] = await tx.select({ signoff: t.signoffs, reel: t.reels, production: t.productions, team: t.teams })
       .from(t.signoffs)

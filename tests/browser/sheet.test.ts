@@ -92,7 +92,7 @@ describe('pass/fail sheet in the browser', () => {
     expect(await page.getByTestId('sheet-reopen').count()).toBe(0) // nor reopen
     await screen(page, 'sheet-03-producer')
     const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('sheet-download-pdf').click()])
-    expect(download.suggestedFilename()).toMatch(/Night-exteriors-sign-off-\d+\.pdf$/)
+    expect(download.suggestedFilename()).toMatch(/^Production [0-9a-f]+ Night exteriors sign-off \d+\.pdf$/)
     const path = await download.path()
     const bytes = readFileSync(path!)
     expect(bytes.subarray(0, 5).toString('latin1')).toBe('%PDF-')

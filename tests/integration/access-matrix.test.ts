@@ -9,7 +9,7 @@ import { Client } from '../support/api'
 import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
 import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number }
+type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'
   /** The allowed answer may be a 404 about the target's state (checked to carry its own message). */
@@ -50,14 +50,13 @@ const ROUTES: Route[] = [
   { method: 'GET', file: 'frames/[id]/index.get.ts', path: (c) => `/api/frames/${c.frameId}`, permission: 'view' },
   { method: 'GET', file: 'frames/[id]/line/[n].get.ts', path: (c) => `/api/frames/${c.frameId}/line/3`, permission: 'view' },
   { method: 'GET', file: 'frames/[id]/images/[kind].get.ts', path: (c) => `/api/frames/${c.frameId}/images/thumb`, permission: 'view' },
-  { method: 'GET', file: 'reels/[id]/sheet.get.ts', path: (c) => `/api/reels/${c.reelId}/sheet`, permission: 'view' },
-  // The matrix reel is never signed off: an allowed role gets 409 "not signed off", never an access error.
-  { method: 'GET', file: 'reels/[id]/sheet.pdf.get.ts', path: (c) => `/api/reels/${c.reelId}/sheet.pdf`, permission: 'downloadSheet' },
-  { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.reelId}/sheet.csv`, permission: 'downloadSheet' },
-  // The matrix frame is decided by other rows at random: an allowed role gets 409 (naming what blocks) or signs off,
-  // and the reopen row right after unlocks it again so the other rows keep a writable reel.
-  { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.reelId}/signoff`, permission: 'signOff' },
-  { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.reelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
+  // Sheet routes run on a reel without frames, so no case can sign the shared reel off and lock
+  // it under the others: allowed roles get 409 (not signed off / no frames), never an access error.
+  { method: 'GET', file: 'reels/[id]/sheet.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet`, permission: 'view' },
+  { method: 'GET', file: 'reels/[id]/sheet.pdf.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.pdf`, permission: 'downloadSheet' },
+  { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.csv`, permission: 'downloadSheet' },
+  { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/signoff`, permission: 'signOff' },
+  { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
 ]
 
 /** Routes that need no session: the token or the credentials are the proof. */
@@ -75,6 +74,7 @@ function routeFiles(dir: string, root = dir): string[] {
 
 let team: Awaited<ReturnType<typeof createTeamWithRoles>>
 let reelId = 0
+let emptyReelId = 0
 let frameId = 0
 let outsider: Awaited<ReturnType<typeof createUser>>
 const clients = new Map<Role | 'outsider', Client>()
@@ -87,6 +87,7 @@ beforeAll(async () => {
   clients.set('outsider', await new Client().login(outsider.email, outsider.password))
   const owner = clients.get('owner')!
   reelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel' })).body.id
+  emptyReelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel without frames' })).body.id
   const up = await owner.uploadFrames(reelId, [{ name: 'matrix.png', bytes: await png8(64, 36, 4242) }])
   frameId = up.body.files[0]!.frameId!
   for (let i = 0; i < 200; i++) {
@@ -104,7 +105,7 @@ async function freshCtx(): Promise<Ctx> {
     teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
   }).$returningId()
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
-  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId }
+  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId }
 }
 
 async function call(client: Client, r: Route, c: Ctx) {
