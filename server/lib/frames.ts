@@ -7,7 +7,7 @@ import type { Queue } from 'bullmq'
 import { firstId, type Db } from '../db/client'
 import * as t from '../db/schema'
 import { analyseJobId, type AnalyseJob } from '../../shared/utils/queues'
-import type { Inspected } from './intake'
+import { IntakeError, type Inspected } from './intake'
 import { keys, type Storage } from './storage'
 
 export const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex')
@@ -37,8 +37,10 @@ export async function createFrame(db: Db, storage: Storage, f: NewFrame): Promis
   // The object goes first: a frame row never points at bytes that are not there.
   if (!f.storedAt) await storage.put(objectKey, f.bytes, contentTypeOf(f.inspected.format))
   return db.transaction(async (tx) => {
-    const [reel] = await tx.select({ nextSeq: t.reels.nextSeq }).from(t.reels).where(eq(t.reels.id, f.reelId)).for('update')
+    const [reel] = await tx.select({ nextSeq: t.reels.nextSeq, signedAt: t.reels.signedAt }).from(t.reels).where(eq(t.reels.id, f.reelId)).for('update')
     if (!reel) throw new Error('reel vanished during upload')
+    // Checked again under the lock: a sign-off may have landed since the route's first check.
+    if (reel.signedAt) throw new IntakeError(409, 'The reel was signed off while this file was arriving; an owner can reopen it')
     const [again] = await tx.select().from(t.frames).where(and(eq(t.frames.reelId, f.reelId), eq(t.frames.sha256, hash))).limit(1)
     if (again) return { frame: again, duplicate: true }
     await tx.update(t.reels).set({ nextSeq: sql`${t.reels.nextSeq} + 1` }).where(eq(t.reels.id, f.reelId))

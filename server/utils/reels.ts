@@ -1,6 +1,7 @@
 import type { H3Event } from 'h3'
 import { and, eq } from 'drizzle-orm'
 import type { Permission, Role } from '../../shared/utils/roles'
+import type { Db } from '../db/client'
 
 /** A reel the user can reach with the permission (joined through their membership), else 404/403. */
 export async function requireReel(event: H3Event, reelId: number, permission: Permission) {
@@ -30,9 +31,14 @@ export async function requireFrame(event: H3Event, frameId: number, permission: 
   return { user, role: row.role as Role, frame: row.frame }
 }
 
-/** Refuses changes to a reel that has been signed off (read-only until an owner reopens it). */
-export async function assertReelOpen(reelId: number) {
-  const [reel] = await useDb().select().from(tables.reels).where(eq(tables.reels.id, reelId)).limit(1)
+/**
+ * Refuses changes to a reel that has been signed off (read-only until an owner reopens it).
+ * Inside a transaction the reel row is share-locked, so a sign-off (which takes it for
+ * update) cannot slip in between this check and the change.
+ */
+export async function assertReelOpen(reelId: number, tx?: Pick<Db, 'select'>) {
+  const q = (tx ?? useDb()).select({ signedAt: tables.reels.signedAt }).from(tables.reels).where(eq(tables.reels.id, reelId)).limit(1)
+  const [reel] = tx ? await q.for('share') : await q
   if (!reel) throw createError({ statusCode: 404, statusMessage: 'Not found' })
   if (reel.signedAt) {
     throw createError({ statusCode: 409, statusMessage: 'This reel is signed off and read-only; an owner can reopen it' })

@@ -5,8 +5,8 @@ import { IdParams } from '../../../../shared/utils/validation'
 export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, IdParams.parse)
   const { frame, user } = await requireFrame(event, id, 'decide')
-  await assertReelOpen(frame.reelId)
   await useDb().transaction(async (tx) => {
+    await assertReelOpen(frame.reelId, tx)
     const [prev] = await tx.select().from(tables.decisions).where(eq(tables.decisions.frameId, frame.id)).for('update')
     if (!prev) throw createError({ statusCode: 404, statusMessage: 'This frame has no decision' })
     await tx.delete(tables.decisions).where(eq(tables.decisions.frameId, frame.id))

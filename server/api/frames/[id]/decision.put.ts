@@ -12,8 +12,8 @@ export default defineEventHandler(async (event) => {
     throw createError({ statusCode: 409, statusMessage: 'This frame\'s file could not be decoded, so there is nothing to accept or waive; reject it, or remove it from the reel' })
   }
   if (frame.status !== 'done' && frame.status !== 'failed') throw createError({ statusCode: 409, statusMessage: 'This frame has no analysis yet; decide once it is analysed' })
-  await assertReelOpen(frame.reelId)
   await useDb().transaction(async (tx) => {
+    await assertReelOpen(frame.reelId, tx)
     const res = await recordDecisions(tx, { teamId: frame.teamId, frameIds: [frame.id], userId: user.id, decision, note })
     // Queued inside the transaction: with Redis down the decision is refused (503), never saved unannounced.
     if (decision === 'rejected') await queueRejectionMails(tx, { teamId: frame.teamId, frameIds: res.updatedIds, decider: user, note })

@@ -8,8 +8,8 @@ export default defineEventHandler(async (event) => {
   const { id } = await getValidatedRouterParams(event, IdParams.parse)
   const { reel, user } = await requireReel(event, id, 'decide')
   const { frameIds, decision, note } = await readValidatedBody(event, BulkDecisionBody.parse)
-  await assertReelOpen(reel.id)
   const res = await useDb().transaction(async (tx) => {
+    await assertReelOpen(reel.id, tx)
     const res = await recordDecisions(tx, { teamId: reel.teamId, frameIds, userId: user.id, decision, note })
     // One mail per uploader for the whole batch, queued inside the transaction so that with
     // Redis down the batch is refused (503) rather than saved unannounced.
