@@ -33,12 +33,13 @@ export async function requireFrame(event: H3Event, frameId: number, permission: 
 
 /**
  * Refuses changes to a reel that has been signed off (read-only until an owner reopens it).
- * Inside a transaction the reel row is share-locked, so a sign-off (which takes it for
- * update) cannot slip in between this check and the change.
+ * Inside a transaction the reel row is locked, so a sign-off (which locks it too) cannot
+ * slip in between this check and the change.
  */
 export async function assertReelOpen(reelId: number, tx?: Pick<Db, 'select'>) {
   const q = (tx ?? useDb()).select({ signedAt: tables.reels.signedAt }).from(tables.reels).where(eq(tables.reels.id, reelId)).limit(1)
-  const [reel] = tx ? await q.for('share') : await q
+  // MariaDB has no FOR SHARE; an update lock serialises decisions on one reel, which is cheap.
+  const [reel] = tx ? await q.for('update') : await q
   if (!reel) throw createError({ statusCode: 404, statusMessage: 'Not found' })
   if (reel.signedAt) {
     throw createError({ statusCode: 409, statusMessage: 'This reel is signed off and read-only; an owner can reopen it' })
