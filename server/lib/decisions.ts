@@ -6,13 +6,13 @@ import type { Decision } from '../../shared/utils/decisions'
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 
 /**
- * Records a decision on analysed frames of one team (upsert, one per frame) and audits each
+ * Records a decision on analysed frames of one reel (the reel whose open state was checked) (upsert, one per frame) and audits each
  * change with the previous value. Frames not analysed yet are skipped and reported.
  */
-export async function recordDecisions(tx: Tx, args: { teamId: number; frameIds: number[]; userId: number; decision: Decision; note: string }) {
+export async function recordDecisions(tx: Tx, args: { teamId: number; reelId: number; frameIds: number[]; userId: number; decision: Decision; note: string }) {
   const frames = await tx.select({ id: t.frames.id, status: t.frames.status, prev: t.decisions.decision, prevNote: t.decisions.note })
     .from(t.frames).leftJoin(t.decisions, eq(t.decisions.frameId, t.frames.id))
-    .where(and(eq(t.frames.teamId, args.teamId), inArray(t.frames.id, args.frameIds))).for('update')
+    .where(and(eq(t.frames.teamId, args.teamId), eq(t.frames.reelId, args.reelId), inArray(t.frames.id, args.frameIds))).for('update')
   // A file that never decoded can only be rejected: there is no measurement to accept or waive,
   // and a sign-off needs every such frame either rejected or gone.
   const ready = frames.filter((f) => f.status === 'done' || (f.status === 'failed' && args.decision === 'rejected'))

@@ -63,6 +63,13 @@ describe('decisions', () => {
     expect(reel.counts).toMatchObject({ total: 3, done: 3, waived: 1, rejected: 1, accepted: 0, undecided: 1 })
   })
 
+  it('ignores frame ids of another reel in a bulk decision (each reel has its own sign-off lock)', async () => {
+    const otherReel = (await editor.post(`/api/productions/${team.productionId}/reels`, { name: 'Decisions, other reel' })).body.id
+    const res = await reviewer.post(`/api/reels/${otherReel}/decisions`, { frameIds: [frameIds[0]], decision: 'rejected', note: 'through the wrong reel' })
+    expect(res.body.updated).toBe(0)
+    expect((await editor.get(`/api/frames/${frameIds[0]}`)).body.decision.decision).toBe('waived')
+  })
+
   it('ignores frame ids of another team in a bulk decision', async () => {
     const other = await createTeamWithRoles()
     const otherEditor = await new Client().login(other.users.editor.email, other.users.editor.password)

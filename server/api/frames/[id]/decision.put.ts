@@ -14,7 +14,7 @@ export default defineEventHandler(async (event) => {
   if (frame.status !== 'done' && frame.status !== 'failed') throw createError({ statusCode: 409, statusMessage: 'This frame has no analysis yet; decide once it is analysed' })
   await useDb().transaction(async (tx) => {
     await assertReelOpen(frame.reelId, tx)
-    const res = await recordDecisions(tx, { teamId: frame.teamId, frameIds: [frame.id], userId: user.id, decision, note })
+    const res = await recordDecisions(tx, { teamId: frame.teamId, reelId: frame.reelId, frameIds: [frame.id], userId: user.id, decision, note })
     // Queued inside the transaction: with Redis down the decision is refused (503), never saved unannounced.
     if (decision === 'rejected') await queueRejectionMails(tx, { teamId: frame.teamId, frameIds: res.updatedIds, decider: user, note })
   })

@@ -10,7 +10,7 @@ export default defineEventHandler(async (event) => {
   const { frameIds, decision, note } = await readValidatedBody(event, BulkDecisionBody.parse)
   const res = await useDb().transaction(async (tx) => {
     await assertReelOpen(reel.id, tx)
-    const res = await recordDecisions(tx, { teamId: reel.teamId, frameIds, userId: user.id, decision, note })
+    const res = await recordDecisions(tx, { teamId: reel.teamId, reelId: reel.id, frameIds, userId: user.id, decision, note })
     // One mail per uploader for the whole batch, queued inside the transaction so that with
     // Redis down the batch is refused (503) rather than saved unannounced.
     if (decision === 'rejected') {
