@@ -47,6 +47,14 @@ const neonSigns: Px = (x, y) => {
   return bg
 }
 
+/** A street under sodium lamps: the saturated amber glow lands inside the composite warning margin. */
+const sodiumStreet: Px = (x, y) => {
+  const d = Math.min(Math.hypot(x - 0.25, y - 0.3), Math.hypot(x - 0.7, y - 0.25))
+  if (d < 0.06) return [245, 225, 30]
+  if (y > 0.7) return [mix(40, 70, x), mix(34, 55, x), 24]
+  return [mix(90, 30, d * 3), mix(75, 25, d * 3), mix(20, 30, d * 3)]
+}
+
 /** A wide shot whose shadows were pulled below black in the grade (for a studio-range reel: codes under 16). */
 const crushedShadows: Px = (x, y) => {
   if (y > 0.6) return [6 + 10 * x, 6 + 10 * x, 8 + 10 * x]
@@ -79,6 +87,7 @@ export const DEMO_REELS: DemoReel[] = [
       { name: 'A001_bars-75.png', png: () => draw(W, H, bars(0.75)) },
       { name: 'A014_dusk-harbour.png', png: () => draw(W, H, duskHarbour) },
       { name: 'A022_neon-signs.png', png: () => draw(W, H, neonSigns) },
+      { name: 'A027_sodium-street.png', png: () => draw(W, H, sodiumStreet) },
       { name: 'A031_bars-100.png', png: () => draw(W, H, bars(1)) },
     ],
   },
