@@ -6,9 +6,12 @@
 // Not a test: the figures depend on the machine and on whatever else runs on it.
 //
 //   LW_BENCH_FRAMES=200 LW_BENCH_PER_REQUEST=4 LW_BENCH_PARALLEL=3 npm run bench:pipeline
+// The app is served from a copy of .output, so that a build by `npm test` during the run
+// cannot pull files from under it. LW_BENCH_SKIP_BUILD=1 copies the .output already there
+// (a build of our own would race theirs on .output and .nuxt).
 import { randomBytes } from 'node:crypto'
 import { availableParallelism, loadavg } from 'node:os'
-import { readFileSync, rmSync } from 'node:fs'
+import { cpSync, readFileSync, rmSync } from 'node:fs'
 import { basename, join } from 'node:path'
 import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
 import { ensureBuild, ensureNodeModules, log, migrateAndSeed, startApp, waitForHttp } from './stack.mjs'
@@ -51,7 +54,7 @@ try {
   resetDatabase(p)
   const env = { ...process.env, ...serviceEnv(p), NUXT_SESSION_PASSWORD: randomBytes(36).toString('base64url') }
   migrateAndSeed(env)
-  ensureBuild()
+  if (process.env.LW_BENCH_SKIP_BUILD !== '1') ensureBuild()
 
   // Made once and kept under .data/bench/frames: generating 200 PNGs takes about a minute.
   const { ensureFrames } = await import('../tests/bench/pipeline-frames.mjs')
@@ -60,7 +63,10 @@ try {
   const files = paths.map((path) => ({ name: basename(path), bytes: readFileSync(path) }))
   const totalMb = files.reduce((s, f) => s + f.bytes.length, 0) / 2 ** 20
 
-  stopApp = startApp(env, { port: p.ports.app, runDir: p.runDir, quiet: true })
+  const outputDir = join(p.dataDir, 'output')
+  rmSync(outputDir, { recursive: true, force: true })
+  cpSync(join(ROOT, '.output'), outputDir, { recursive: true })
+  stopApp = startApp(env, { port: p.ports.app, runDir: p.runDir, quiet: true, outputDir })
   const base = env.NUXT_PUBLIC_APP_URL
   await waitForHttp(`${base}/login`)
 
@@ -89,7 +95,18 @@ try {
       const batch = batches[next++]
       const form = new FormData()
       for (const f of batch) form.append('file', new Blob([f.bytes], { type: 'image/png' }), f.name)
-      const res = await fetch(new URL(`/api/reels/${reel.id}/frames`, base), { method: 'POST', headers: { cookie }, body: form })
+      // A kept-alive socket the server closes just as a request goes out resets; sending the
+      // same files again is safe (the server answers a repeat as a duplicate of the stored frame).
+      let res
+      for (let attempt = 1; ; attempt++) {
+        try {
+          res = await fetch(new URL(`/api/reels/${reel.id}/frames`, base), { method: 'POST', headers: { cookie }, body: form })
+          break
+        } catch (e) {
+          if (attempt >= 3) throw e
+          console.error(`upload retried: ${e.cause?.message ?? e.message}`)
+        }
+      }
       const body = await res.json().catch(() => null)
       for (const f of body?.files ?? []) if (!f.ok) { refused++; console.error(`refused ${f.name}: ${f.reason}`) }
       if (!body?.files) { refused += batch.length; console.error(`upload failed: ${res.status}`) }
@@ -133,7 +150,7 @@ try {
 `)
   code = rows.length === FRAMES ? 0 : 1
 } catch (e) {
-  console.error(`[linewise] ${e.stack ?? e.message}`)
+  console.error(`[linewise] ${e.stack ?? e.message}${e.cause ? `\n  cause: ${e.cause.stack ?? e.cause}` : ""}`)
   code = 1
 } finally {
   if (!stopping) await cleanUp()

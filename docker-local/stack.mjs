@@ -77,7 +77,7 @@ export function migrateAndSeed(env) {
  * `<runDir>/app-*.pid`, so a fault test may kill the worker and start another in its place
  * (tests/support/stack.ts) and stop() still ends whatever is listed there.
  */
-export function startApp(env, { port, runDir, quiet = false, onExit } = {}) {
+export function startApp(env, { port, runDir, quiet = false, onExit, outputDir = join(ROOT, '.output') } = {}) {
   const children = []
   const stdio = quiet ? ['ignore', 'ignore', 'inherit'] : 'inherit'
   const add = (name, args, extraEnv = {}) => {
@@ -89,7 +89,7 @@ export function startApp(env, { port, runDir, quiet = false, onExit } = {}) {
     children.push(child)
     if (runDir) writeFileSync(join(runDir, `app-${name}-${child.pid}.pid`), String(child.pid))
   }
-  add('server', [join(ROOT, '.output/server/index.mjs')], { PORT: String(port), HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', NITRO_PORT: String(port) })
+  add('server', [join(outputDir, 'server/index.mjs')], { PORT: String(port), HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', NITRO_PORT: String(port) })
   add('worker', ['--import', 'tsx', join(ROOT, 'workers/index.ts')])
   return async function stop() {
     if (runDir) {
