@@ -10,6 +10,8 @@ import { analyseJobId, type AnalyseJob } from '../../shared/utils/queues'
 import { IntakeError, type Inspected } from './intake'
 import { keys, type Storage } from './storage'
 
+const QUEUE_TIMEOUT_MS = 3000
+
 export const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex')
 
 export interface NewFrame {
@@ -58,12 +60,18 @@ export async function createFrame(db: Db, storage: Storage, f: NewFrame): Promis
  * worker's sweeper queues it when Redis is back: it is never lost, only late.
  */
 export async function queueFrame(queue: Queue<AnalyseJob>, frameId: number): Promise<boolean> {
+  let timer: NodeJS.Timeout | undefined
   try {
-    await queue.add('analyse', { frameId }, { jobId: analyseJobId(frameId) })
+    // BullMQ waits for a first connection that never comes when Redis is down at start:
+    // give up after a moment, the sweeper has the frame.
+    const timeout = new Promise<never>((_, reject) => { timer = setTimeout(() => reject(new Error('queue did not answer within 3 s')), QUEUE_TIMEOUT_MS) })
+    await Promise.race([queue.add('analyse', { frameId }, { jobId: analyseJobId(frameId) }), timeout])
     return true
   } catch (e) {
     console.error(`[queue] frame ${frameId} not queued yet: ${(e as Error).message}`)
     return false
+  } finally {
+    clearTimeout(timer)
   }
 }
 

@@ -29,10 +29,15 @@ export function useQueue(name: string): Queue {
 
 /** Adds a job or answers 503: a job is never silently dropped. */
 export async function enqueue<T>(queue: string, name: string, data: T, opts: Record<string, unknown> = {}) {
+  let timer: NodeJS.Timeout | undefined
   try {
-    return await useQueue(queue).add(name, data, opts)
+    // A queue whose first connection never came would wait for ever: answer 503 instead.
+    const timeout = new Promise<never>((_, reject) => { timer = setTimeout(() => reject(new Error('no answer within 3 s')), 3000) })
+    return await Promise.race([useQueue(queue).add(name, data, opts), timeout])
   } catch (e) {
     console.error(`[queue ${queue}] add failed`, (e as Error).message)
     throw createError({ statusCode: 503, statusMessage: 'The job queue is unavailable; nothing was saved. Try again in a minute.' })
+  } finally {
+    clearTimeout(timer)
   }
 }
