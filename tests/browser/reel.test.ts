@@ -1,3 +1,4 @@
+/// <reference lib="dom" />
 // The editor creates a studio-range reel on the production overview, drops three frame grabs,
 // one PNG cut short and one file that is not a picture on its upload area, and watches them
 // being measured without reloading the page; the table's units and filters change what it

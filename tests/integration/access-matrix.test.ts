@@ -3,6 +3,7 @@
 import { readdirSync, statSync } from 'node:fs'
 import { join, relative } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { firstId } from '../../server/db/client'
 import * as t from '../../server/db/schema'
 import { CAN, ROLES, type Permission, type Role } from '../../shared/utils/roles'
 import { Client } from '../support/api'
@@ -101,9 +102,9 @@ afterAll(closeDb)
 async function freshCtx(): Promise<Ctx> {
   const spare = await createUser('spare')
   await addMember(team.teamId, spare.id, 'editor')
-  const [{ id: invitationId }] = await db().insert(t.invitations).values({
+  const invitationId = firstId(await db().insert(t.invitations).values({
     teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
-  }).$returningId()
+  }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
   return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId }
 }

@@ -45,7 +45,7 @@ export class Client {
   /** multipart/form-data upload of files to a reel, as a script would send it. */
   async uploadFrames(reelId: number, files: { name: string; bytes: Uint8Array }[], query = '') {
     const form = new FormData()
-    for (const f of files) form.append('file', new Blob([f.bytes]), f.name)
+    for (const f of files) form.append('file', new Blob([f.bytes as BlobPart]), f.name)
     const res = await fetch(new URL(`/api/reels/${reelId}/frames${query}`, APP_URL()), { method: 'POST', body: form, headers: { cookie: this.cookieHeader() } })
     const text = await res.text()
     let body: any = text

@@ -1,7 +1,7 @@
 // Test data written straight into the test database (the API is what is under test,
 // not the way the data got there). Every call makes new, uniquely named rows.
 import { randomBytes } from 'node:crypto'
-import { createDb } from '../../server/db/client'
+import { createDb, firstId } from '../../server/db/client'
 import { hashPassword } from '../../server/db/password'
 import * as t from '../../server/db/schema'
 import type { Role } from '../../shared/utils/roles'
@@ -24,12 +24,12 @@ let passwordHash: string | undefined
 export async function createUser(label = 'user') {
   passwordHash ??= await hashPassword(PASSWORD)
   const email = `${label}-${uid()}@test.example`
-  const [{ id }] = await db().insert(t.users).values({ email, name: `Test ${label}`, passwordHash }).$returningId()
+  const id = firstId(await db().insert(t.users).values({ email, name: `Test ${label}`, passwordHash }).$returningId())
   return { id, email, password: PASSWORD }
 }
 
 export async function createTeam(name = 'Team') {
-  const [{ id }] = await db().insert(t.teams).values({ name: `${name} ${uid()}` }).$returningId()
+  const id = firstId(await db().insert(t.teams).values({ name: `${name} ${uid()}` }).$returningId())
   return id
 }
 
@@ -38,7 +38,7 @@ export async function addMember(teamId: number, userId: number, role: Role) {
 }
 
 export async function createProduction(teamId: number, name = 'Production') {
-  const [{ id }] = await db().insert(t.productions).values({ teamId, name: `${name} ${uid()}` }).$returningId()
+  const id = firstId(await db().insert(t.productions).values({ teamId, name: `${name} ${uid()}` }).$returningId())
   return id
 }
 

@@ -44,7 +44,9 @@ export async function png16(width: number, height: number, seed: number) {
   const r = rng(seed)
   const data = new Uint16Array(width * height * 3)
   for (let i = 0; i < data.length; i++) data[i] = Math.floor(r() * 65536)
-  return sharp(Buffer.from(data.buffer), { raw: { width, height, channels: 3, depth: 'ushort' } })
+  // sharp reads 16-bit raw input with `depth`, which its type declarations do not list yet.
+  const raw = { width, height, channels: 3 as const, depth: 'ushort' }
+  return sharp(Buffer.from(data.buffer), { raw })
     .toColourspace('rgb16').png({ compressionLevel: 1 }).toBuffer()
 }
 

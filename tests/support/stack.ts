@@ -3,7 +3,6 @@
 import { spawn } from 'node:child_process'
 import { readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
 import { join } from 'node:path'
-// @ts-expect-error plain ESM script without type declarations
 import { profile, startMariadb, startRedis, stopService } from '../../docker-local/services.mjs'
 
 export const testProfile = () => profile(process.env.LW_PROFILE ?? 'test')
