@@ -80,6 +80,23 @@ export function fastPass(input: FrameInput, matrix: MatrixName, acc: Accumulator
 // constant and running total in locals: with no repeats at all (noise, grain) that is one
 // queue entry per unit, and the batch loop is as tight as a plain per-pixel pass.
 
+// Branch-free integer max/min of three level bins. On noise, data-dependent branches are
+// mispredicted about half the time and cost more than all the arithmetic; the bin of
+// y + max(ro, go, bo) is the max of the three bins because rounding and truncation are monotone.
+function max3(a: number, b: number, c: number): number {
+  let d = a - b
+  const m = a - (d & (d >> 31))
+  d = m - c
+  return m - (d & (d >> 31))
+}
+
+function min3(a: number, b: number, c: number): number {
+  let d = a - b
+  const m = b + (d & (d >> 31))
+  d = m - c
+  return c + (d & (d >> 31))
+}
+
 /** The queue of ended runs: column, the unit's codes, and the run length. */
 class Queue {
   len = 0
@@ -128,9 +145,7 @@ function rgbBatch(k: Kernel, q: Queue, kr: number, kb: number, cbDiv: number, cr
     const c = 219 * Math.sqrt(u * u + v * v)
     if (c > cMax) cMax = c
     const ro = rK * pr; const bo = bK * pb; const go = gR * pr + gB * pb
-    const mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
-    const mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
-    const cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
+    const cOut = +(cb < LOW_BAND) | +(cb >= HIGH_CHROMA) | +(cr < LOW_BAND) | +(cr >= HIGH_CHROMA)
     // Luma (rowPass, per pixel).
     sumY += y * n
     if (y < yMin) yMin = y
@@ -138,24 +153,24 @@ function rgbBatch(k: Kernel, q: Queue, kr: number, kb: number, cbDiv: number, cr
     const hi = y + c; const lo = y - c
     if (hi > compMax) compMax = hi
     if (lo < compMin) compMin = lo
-    const mx = y + mxo; const mn = y + mno
+    const yr = y + ro; const yg = y + go; const yb = y + bo
     const iy = (y * LV_SCALE + LV_OFF) | 0
     const ihi = (hi * LV_SCALE + LV_OFF) | 0
     const ilo = (lo * LV_SCALE + LV_OFF) | 0
-    const ir = ((y + ro) * LV_SCALE + LV_OFF) | 0
-    const ig = ((y + go) * LV_SCALE + LV_OFF) | 0
-    const ib = ((y + bo) * LV_SCALE + LV_OFF) | 0
+    const ir = (yr * LV_SCALE + LV_OFF) | 0
+    const ig = (yg * LV_SCALE + LV_OFF) | 0
+    const ib = (yb * LV_SCALE + LV_OFF) | 0
     dl[iy]! += n
     dhi[ihi]! += n
     dlo[ilo]! += n
-    dmx[(mx * LV_SCALE + LV_OFF) | 0]! += n
-    dmn[(mn * LV_SCALE + LV_OFF) | 0]! += n
+    dmx[max3(ir, ig, ib)]! += n
+    dmn[min3(ir, ig, ib)]! += n
     dr[ir]! += n
     dg[ig]! += n
     db[ib]! += n
-    if (hi > COMP_HI || lo < COMP_LO) compOut += n
-    if (mx > gamHi || mn < gamLo) gamOut += n
-    if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut += n
+    compOut += (+(hi > COMP_HI) | +(lo < COMP_LO)) * n
+    gamOut += (+(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)) * n
+    studOut += (cOut | +(y < LOW_BAND) | +(y >= HIGH_LUMA)) * n
     if (wave) {
       let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
       let vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
@@ -205,9 +220,7 @@ function pairBatch(k: Kernel, q: Queue, centre: number, span: number, yScale: nu
     const c = 219 * Math.sqrt(u * u + v * v)
     if (c > cMax) cMax = c
     const ro = rK * pr; const bo = bK * pb; const go = gR * pr + gB * pb
-    const mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
-    const mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
-    const cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
+    const cOut = +(cb < LOW_BAND) | +(cb >= HIGH_CHROMA) | +(cr < LOW_BAND) | +(cr >= HIGH_CHROMA)
     const x = QX[e]!
     if (wave) {
       let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
@@ -224,24 +237,24 @@ function pairBatch(k: Kernel, q: Queue, centre: number, span: number, yScale: nu
       const hi = y + c; const lo = y - c
       if (hi > compMax) compMax = hi
       if (lo < compMin) compMin = lo
-      const mx = y + mxo; const mn = y + mno
+      const yr = y + ro; const yg = y + go; const yb = y + bo
       const iy = (y * LV_SCALE + LV_OFF) | 0
       const ihi = (hi * LV_SCALE + LV_OFF) | 0
       const ilo = (lo * LV_SCALE + LV_OFF) | 0
-      const ir = ((y + ro) * LV_SCALE + LV_OFF) | 0
-      const ig = ((y + go) * LV_SCALE + LV_OFF) | 0
-      const ib = ((y + bo) * LV_SCALE + LV_OFF) | 0
+      const ir = (yr * LV_SCALE + LV_OFF) | 0
+      const ig = (yg * LV_SCALE + LV_OFF) | 0
+      const ib = (yb * LV_SCALE + LV_OFF) | 0
       dl[iy]! += n
       dhi[ihi]! += n
       dlo[ilo]! += n
-      dmx[(mx * LV_SCALE + LV_OFF) | 0]! += n
-      dmn[(mn * LV_SCALE + LV_OFF) | 0]! += n
+      dmx[max3(ir, ig, ib)]! += n
+      dmn[min3(ir, ig, ib)]! += n
       dr[ir]! += n
       dg[ig]! += n
       db[ib]! += n
-      if (hi > COMP_HI || lo < COMP_LO) compOut += n
-      if (mx > gamHi || mn < gamLo) gamOut += n
-      if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut += n
+      compOut += (+(hi > COMP_HI) | +(lo < COMP_LO)) * n
+      gamOut += (+(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)) * n
+      studOut += (cOut | +(y < LOW_BAND) | +(y >= HIGH_LUMA)) * n
       if (wave) {
         const col = colOf[x + h]!
         wl[rowOff[iy]! + col]! += n
