@@ -10,7 +10,7 @@ import { analyseJobId, type AnalyseJob } from '../../shared/utils/queues'
 import { IntakeError, type Inspected } from './intake'
 import { keys, type Storage } from './storage'
 
-const QUEUE_TIMEOUT_MS = 3000
+const QUEUE_TIMEOUT_MS = 10_000
 
 export const sha256 = (bytes: Uint8Array) => createHash('sha256').update(bytes).digest('hex')
 
@@ -64,7 +64,7 @@ export async function queueFrame(queue: Queue<AnalyseJob>, frameId: number): Pro
   try {
     // BullMQ waits for a first connection that never comes when Redis is down at start:
     // give up after a moment, the sweeper has the frame.
-    const timeout = new Promise<never>((_, reject) => { timer = setTimeout(() => reject(new Error('queue did not answer within 3 s')), QUEUE_TIMEOUT_MS) })
+    const timeout = new Promise<never>((_, reject) => { timer = setTimeout(() => reject(new Error('queue did not answer within 10 s')), QUEUE_TIMEOUT_MS) })
     await Promise.race([queue.add('analyse', { frameId }, { jobId: analyseJobId(frameId) }), timeout])
     return true
   } catch (e) {

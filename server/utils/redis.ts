@@ -32,7 +32,7 @@ export async function enqueue<T>(queue: string, name: string, data: T, opts: Rec
   let timer: NodeJS.Timeout | undefined
   try {
     // A queue whose first connection never came would wait for ever: answer 503 instead.
-    const timeout = new Promise<never>((_, reject) => { timer = setTimeout(() => reject(new Error('no answer within 3 s')), 3000) })
+    const timeout = new Promise<never>((_, reject) => { timer = setTimeout(() => reject(new Error('no answer within 10 s')), 10_000) })
     return await Promise.race([useQueue(queue).add(name, data, opts), timeout])
   } catch (e) {
     console.error(`[queue ${queue}] add failed`, (e as Error).message)
