@@ -193,71 +193,159 @@ function rgbBatch(k: Kernel, q: Queue, kr: number, kb: number, cbDiv: number, cr
 }
 
 /**
- * Measures queued 4:2:2 pairs (a, b = Cb, Cr codes; c, d = Y0, Y1 codes; x = column of Y0)
- * with the reference's arithmetic: Pb = (Cb − centre) / span, Y' = code · yScale.
+ * edgeEps: half-width of the band around a bin edge inside which the integer bin shortcut is
+ * not trusted. The float route rounds twice (y + offset, then ·4 + LV_OFF) for an error under
+ * 1e-12 quarter codes; anything this far from an edge lands in the same bin either way. No
+ * 8- or 10-bit chroma pair of either matrix comes this close, so the float route is only
+ * reached when the tests widen the band to hold it to the reference too.
  */
-function pairBatch(k: Kernel, q: Queue, centre: number, span: number, yScale: number): void {
-  const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo, wave, rowOff, colOf } = k
-  const { dl, dhi, dlo, dmx, dmn, dr, dg, db, cbH, crH, wl, wf, wr, wg, wb, vec } = k
-  let sumY = 0; let yMin = k.yMin; let yMax = k.yMax; let compMin = k.compMin; let compMax = k.compMax
-  let cbMin = k.cbMin; let cbMax = k.cbMax; let crMin = k.crMin; let crMax = k.crMax; let cMax = k.cMax
+export const fastTuning = { edgeEps: 1e-9 }
+
+/**
+ * Per-code tables for a 4:2:2 Y'CbCr source: every chroma- or luma-only quantity of the
+ * reference's arithmetic, evaluated once per code by the reference's own expressions, and
+ * per-code counts from which the luma sum, extremes, luma distribution, Cb/Cr histograms
+ * and Cb/Cr extremes are folded at the end (each is a function of the code alone, and luma
+ * codes are multiples of a quarter, so the folded sum is exact).
+ */
+class PairTables {
+  readonly yCnt: Uint32Array; readonly cbCnt: Uint32Array; readonly crCnt: Uint32Array
+  readonly yv: Float64Array; readonly yBin: Int32Array; readonly yOut: Int32Array
+  readonly cbV: Float64Array; readonly cbIdx: Int32Array; readonly u: Float64Array; readonly bo: Float64Array; readonly gb: Float64Array
+  readonly cbOut: Int32Array; readonly vcT: Int32Array
+  readonly crV: Float64Array; readonly crIdx: Int32Array; readonly v: Float64Array; readonly ro: Float64Array; readonly gr: Float64Array
+  readonly crOut: Int32Array; readonly vrT: Int32Array
+
+  constructor(codes: number, centre: number, span: number, yScale: number, k: Kernel) {
+    const F = () => new Float64Array(codes); const I = () => new Int32Array(codes)
+    this.yCnt = new Uint32Array(codes); this.cbCnt = new Uint32Array(codes); this.crCnt = new Uint32Array(codes)
+    this.yv = F(); this.yBin = I(); this.yOut = I()
+    this.cbV = F(); this.cbIdx = I(); this.u = F(); this.bo = F(); this.gb = F(); this.cbOut = I(); this.vcT = I()
+    this.crV = F(); this.crIdx = I(); this.v = F(); this.ro = F(); this.gr = F(); this.crOut = I(); this.vrT = I()
+    const { uK, vK, rK, bK, gR, gB, cbOff, hs } = k
+    for (let c = 0; c < codes; c++) {
+      const y = c * yScale
+      this.yv[c] = y
+      this.yBin[c] = (y * LV_SCALE + LV_OFF) | 0
+      this.yOut[c] = +(y < LOW_BAND) | +(y >= HIGH_LUMA)
+      const p = (c - centre) / span
+      const ch = 128 + 224 * p
+      const idx = (ch * hs + cbOff) | 0
+      const out = +(ch < LOW_BAND) | +(ch >= HIGH_CHROMA)
+      this.cbV[c] = ch; this.cbIdx[c] = idx; this.cbOut[c] = out
+      this.crV[c] = ch; this.crIdx[c] = idx; this.crOut[c] = out
+      const u = uK * p; const v = vK * p
+      this.u[c] = u; this.bo[c] = bK * p; this.gb[c] = gB * p
+      this.v[c] = v; this.ro[c] = rK * p; this.gr[c] = gR * p
+      const vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
+      const vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
+      this.vcT[c] = vc < 0 ? 0 : vc > VS_LAST ? VS_LAST : vc
+      this.vrT[c] = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
+    }
+  }
+
+  finish(k: Kernel): void {
+    const { yCnt, cbCnt, crCnt, yv, yBin, cbV, crV, cbIdx, crIdx } = this
+    for (let c = 0; c < yCnt.length; c++) {
+      const n = yCnt[c]!
+      if (n) {
+        const y = yv[c]!
+        k.sumY += y * n
+        if (y < k.yMin) k.yMin = y
+        if (y > k.yMax) k.yMax = y
+        k.dl[yBin[c]!]! += n
+      }
+      const nb = cbCnt[c]!
+      if (nb) {
+        const cb = cbV[c]!
+        if (cb < k.cbMin) k.cbMin = cb
+        if (cb > k.cbMax) k.cbMax = cb
+        k.cbH[cbIdx[c]!]! += nb
+      }
+      const nr = crCnt[c]!
+      if (nr) {
+        const cr = crV[c]!
+        if (cr < k.crMin) k.crMin = cr
+        if (cr > k.crMax) k.crMax = cr
+        k.crH[crIdx[c]!]! += nr
+      }
+    }
+  }
+}
+
+/** Whole quarter codes a level moves by when `off` is added, or NaN near a bin edge. */
+function binShift(off: number, eps: number): number {
+  const z = off * LV_SCALE + 0.5
+  const q = Math.floor(z)
+  const f = z - q
+  return f > eps && f < 1 - eps ? q : NaN
+}
+
+/**
+ * Measures queued 4:2:2 pairs (a, b = Cb, Cr codes; c, d = Y0, Y1 codes; x = column of Y0)
+ * with the reference's arithmetic, looked up per code. The level bin of y + offset is
+ * y's bin plus the offset's whole quarter codes, since y is a whole number of quarter codes,
+ * unless the offset lies within fastTuning.edgeEps of a bin edge; such pairs take the float route.
+ */
+function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
+  const { gamHi, gamLo, wave, rowOff, colOf } = k
+  const { dhi, dlo, dmx, dmn, dr, dg, db, wl, wf, wr, wg, wb, vec } = k
+  const { yCnt, cbCnt, crCnt, yv, yBin, yOut, u: uT, bo: boT, gb: gbT, cbOut, vcT, v: vT, ro: roT, gr: grT, crOut, vrT } = tb
+  const eps = fastTuning.edgeEps
+  let compMin = k.compMin; let compMax = k.compMax; let cMax = k.cMax
   let compOut = 0; let gamOut = 0; let studOut = 0
   const { x: QX, a: QCb, b: QCr, c: QY0, d: QY1, n: QN } = q
   for (let e = 0, len = q.len; e < len; e++) {
     const n = QN[e]!
-    const pb = (QCb[e]! - centre) / span
-    const pr = (QCr[e]! - centre) / span
-    const cb = 128 + 224 * pb
-    const cr = 128 + 224 * pr
-    if (cb < cbMin) cbMin = cb
-    if (cb > cbMax) cbMax = cb
-    if (cr < crMin) crMin = cr
-    if (cr > crMax) crMax = cr
+    const cbc = QCb[e]!; const crc = QCr[e]!
     // The sample stands for both pixels of the pair.
-    cbH[(cb * hs + cbOff) | 0]! += 2 * n
-    crH[(cr * hs + cbOff) | 0]! += 2 * n
-    const u = uK * pb; const v = vK * pr
+    cbCnt[cbc]! += 2 * n
+    crCnt[crc]! += 2 * n
+    const u = uT[cbc]!; const v = vT[crc]!
     const c = 219 * Math.sqrt(u * u + v * v)
     if (c > cMax) cMax = c
-    const ro = rK * pr; const bo = bK * pb; const go = gR * pr + gB * pb
-    const cOut = +(cb < LOW_BAND) | +(cb >= HIGH_CHROMA) | +(cr < LOW_BAND) | +(cr >= HIGH_CHROMA)
+    const ro = roT[crc]!; const bo = boT[cbc]!; const go = grT[crc]! + gbT[cbc]!
+    const cOut = cbOut[cbc]! | crOut[crc]!
     const x = QX[e]!
-    if (wave) {
-      let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
-      let vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
-      vc = vc < 0 ? 0 : vc > VS_LAST ? VS_LAST : vc
-      vr = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
-      vec[vr * VECTORSCOPE_SIZE + vc]! += 2 * n
-    }
+    if (wave) vec[vrT[crc]! * VECTORSCOPE_SIZE + vcT[cbc]!]! += 2 * n
+    const qhi = binShift(c, eps); const qlo = binShift(-c, eps)
+    const qr = binShift(ro, eps); const qg = binShift(go, eps); const qb = binShift(bo, eps)
+    const exact = qhi === qhi && qlo === qlo && qr === qr && qg === qg && qb === qb
+    const qmx = exact ? max3(qr, qg, qb) : 0; const qmn = exact ? min3(qr, qg, qb) : 0
     for (let h = 0; h < 2; h++) {
-      const y = (h ? QY1[e]! : QY0[e]!) * yScale
-      sumY += y * n
-      if (y < yMin) yMin = y
-      if (y > yMax) yMax = y
+      const yc = h ? QY1[e]! : QY0[e]!
+      yCnt[yc]! += n
+      const y = yv[yc]!
       const hi = y + c; const lo = y - c
       if (hi > compMax) compMax = hi
       if (lo < compMin) compMin = lo
       const yr = y + ro; const yg = y + go; const yb = y + bo
-      const iy = (y * LV_SCALE + LV_OFF) | 0
-      const ihi = (hi * LV_SCALE + LV_OFF) | 0
-      const ilo = (lo * LV_SCALE + LV_OFF) | 0
-      const ir = (yr * LV_SCALE + LV_OFF) | 0
-      const ig = (yg * LV_SCALE + LV_OFF) | 0
-      const ib = (yb * LV_SCALE + LV_OFF) | 0
-      dl[iy]! += n
+      let ihi: number, ilo: number, ir: number, ig: number, ib: number, imx: number, imn: number
+      if (exact) {
+        const K = yBin[yc]!
+        ihi = K + qhi; ilo = K + qlo; ir = K + qr; ig = K + qg; ib = K + qb; imx = K + qmx; imn = K + qmn
+      }
+      else {
+        ihi = (hi * LV_SCALE + LV_OFF) | 0
+        ilo = (lo * LV_SCALE + LV_OFF) | 0
+        ir = (yr * LV_SCALE + LV_OFF) | 0
+        ig = (yg * LV_SCALE + LV_OFF) | 0
+        ib = (yb * LV_SCALE + LV_OFF) | 0
+        imx = max3(ir, ig, ib); imn = min3(ir, ig, ib)
+      }
       dhi[ihi]! += n
       dlo[ilo]! += n
-      dmx[max3(ir, ig, ib)]! += n
-      dmn[min3(ir, ig, ib)]! += n
+      dmx[imx]! += n
+      dmn[imn]! += n
       dr[ir]! += n
       dg[ig]! += n
       db[ib]! += n
       compOut += (+(hi > COMP_HI) | +(lo < COMP_LO)) * n
       gamOut += (+(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)) * n
-      studOut += (cOut | +(y < LOW_BAND) | +(y >= HIGH_LUMA)) * n
+      studOut += (cOut | yOut[yc]!) * n
       if (wave) {
         const col = colOf[x + h]!
-        wl[rowOff[iy]! + col]! += n
+        wl[rowOff[yBin[yc]!]! + col]! += n
         wf[rowOff[ihi]! + col]! += n
         wf[rowOff[ilo]! + col]! += n
         wr[rowOff[ir]! + col]! += n
@@ -267,8 +355,7 @@ function pairBatch(k: Kernel, q: Queue, centre: number, span: number, yScale: nu
     }
   }
   q.len = 0
-  k.sumY += sumY; k.yMin = yMin; k.yMax = yMax; k.compMin = compMin; k.compMax = compMax
-  k.cbMin = cbMin; k.cbMax = cbMax; k.crMin = crMin; k.crMax = crMax; k.cMax = cMax
+  k.compMin = compMin; k.compMax = compMax; k.cMax = cMax
   k.compOut += compOut; k.gamOut += gamOut; k.studOut += studOut
 }
 
@@ -317,6 +404,7 @@ function rgb8(data: Uint8Array, width: number, height: number, ch: number, full:
 }
 
 function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
+  const tb = new PairTables(256, 128, 224, 1, k)
   const pairs = stripe >> 1
   const keys = new Int32Array(pairs)
   const runs = new Int32Array(pairs)
@@ -350,12 +438,14 @@ function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe
         }
       }
       q.len = m
-      if (m) pairBatch(k, q, 128, 224, 1)
+      if (m) pairBatch(k, q, tb)
     }
   }
+  tb.finish(k)
 }
 
 function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
+  const tb = new PairTables(1024, 512, 896, 0.25, k)
   const stride = v210Stride(width)
   // Rows start on 128-byte boundaries, so an aligned buffer can be read a word at a time.
   const words = LITTLE_ENDIAN && data.byteOffset % 4 === 0 ? new Int32Array(data.buffer, data.byteOffset, data.length >> 2) : undefined
@@ -399,9 +489,10 @@ function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe
         }
       }
       q.len = m
-      if (m) pairBatch(k, q, 512, 896, 0.25)
+      if (m) pairBatch(k, q, tb)
     }
   }
+  tb.finish(k)
 }
 
 /**

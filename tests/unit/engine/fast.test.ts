@@ -7,6 +7,7 @@ import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, packV210 } from '../../../shared/engine/index'
 import { analyseFrameReference } from '../../../shared/engine/analyse'
+import { fastTuning } from '../../../shared/engine/fast'
 import type { FrameAnalysis, FrameInput, MatrixName } from '../../../shared/engine/index'
 
 /**
@@ -38,7 +39,9 @@ function codes(h: number, perRow: number, templates: number, change: number, rnd
   return out
 }
 
-const frames = fc.tuple(shape, fc.constantFrom('rgb3', 'rgb4', 'rgbStudio', 'uyvy', 'v210')).map(([{ w, h, templates, change, seed }, kind]): FrameInput => {
+const kinds = fc.constantFrom('rgb3', 'rgb4', 'rgbStudio', 'uyvy', 'v210')
+
+function frameOf({ w, h, templates, change, seed }: { w: number, h: number, templates: number, change: number, seed: number }, kind: string): FrameInput {
   const rnd = sampler(seed)
   if (kind.startsWith('rgb')) {
     const ch = kind === 'rgb4' ? 4 : 3
@@ -59,7 +62,45 @@ const frames = fc.tuple(shape, fc.constantFrom('rgb3', 'rgb4', 'rgbStudio', 'uyv
   const cb = codes(h, w / 2, templates, change, rnd, 1023)
   const cr = codes(h, w / 2, templates, change, rnd, 1023)
   return { kind: 'v210', data: packV210(y, cb, cr, w, h), width: w, height: h }
-})
+}
+
+const frames = fc.tuple(shape, kinds).map(([sh, kind]) => frameOf(sh, kind))
+
+/** Grain: every sample drawn afresh, frames several stripes wide, so no run lasts a row. */
+const noiseFrames = fc.tuple(fc.integer({ min: 100, max: 260 }).map(n => n * 2), fc.integer({ min: 1, max: 5 }), fc.integer(), kinds)
+  .map(([w, h, seed, kind]) => frameOf({ w, h, templates: 1, change: 1, seed }, kind))
+
+/**
+ * UYVY with every 8-bit (Cb, Cr) pair once (Cb down, Cr across) and random luma: every
+ * chroma offset the tables and bin shortcuts can meet, bin-edge cases included.
+ */
+function allChroma8(): FrameInput {
+  const w = 512; const h = 256
+  const rnd = sampler(99)
+  const data = new Uint8Array(w * h * 2)
+  for (let row = 0; row < h; row++) {
+    for (let j = 0; j < w / 2; j++) {
+      const i = (row * w + 2 * j) * 2
+      data[i] = row; data[i + 1] = Math.floor(rnd() * 256); data[i + 2] = j; data[i + 3] = Math.floor(rnd() * 256)
+    }
+  }
+  return { kind: 'uyvy', data, width: w, height: h }
+}
+
+/** v210 with every 10-bit Cr code against a spread of Cb codes, with random luma. */
+function allChroma10(): FrameInput {
+  const w = 2048; const h = 96
+  const rnd = sampler(1234)
+  const y = new Int32Array(w * h); const cb = new Int32Array(w * h / 2); const cr = new Int32Array(w * h / 2)
+  for (let i = 0; i < w * h; i++) y[i] = Math.floor(rnd() * 1024)
+  for (let row = 0; row < h; row++) {
+    for (let j = 0; j < w / 2; j++) {
+      cb[row * (w / 2) + j] = (row * 11 + (j >> 7) * 131) % 1024
+      cr[row * (w / 2) + j] = j
+    }
+  }
+  return { kind: 'v210', data: packV210(y, cb, cr, w, h), width: w, height: h }
+}
 
 /** Index of the first difference of two typed arrays, −1 if none (toEqual is slow on megabytes). */
 function firstDiff(a: Uint32Array, b: Uint32Array): number {
@@ -125,5 +166,38 @@ describe('fast kernels equal the reference pass', () => {
     // 75 % yellow: Y' = 0.886 · 0.75 (BT.601-7 §2.5, REFERENCE.md §1): one level bin holds all.
     expect(Math.max(...a.histograms.levels.luma)).toBe(w * h)
     expect(a.luma.min).toBeCloseTo(16 + 219 * 0.886 * 191 / 255, 9)
+  })
+
+  it('pure noise (no vertical repeats), with and without densities', () => {
+    fc.assert(fc.property(noiseFrames, fc.constantFrom<MatrixName>('601', '709'), fc.boolean(), (input, matrix, keepDensities) => {
+      expectSame(analyseFrame(input, { matrix, keepDensities }), analyseFrameReference(input, { matrix, keepDensities }), input)
+    }), { numRuns: 40 })
+  })
+
+  it('every 8-bit Cb/Cr pair, and every 10-bit Cr code, bin for bin', () => {
+    for (const input of [allChroma8(), allChroma10()]) {
+      for (const matrix of ['601', '709'] as const) {
+        const a = analyseFrame(input, { matrix, keepDensities: true })
+        expectSame(a, analyseFrameReference(input, { matrix, keepDensities: true }), input)
+        expect(a.histograms.levels.compMax.reduce((s, c) => s + c, 0)).toBe(input.width * input.height)
+      }
+    }
+  })
+
+  it('the float route beside the integer bin shortcut agrees too', () => {
+    // A band this wide sends about 40 % of chroma pairs (every 8- and 10-bit pair checked) down the float route.
+    const saved = fastTuning.edgeEps
+    fastTuning.edgeEps = 0.06
+    try {
+      for (const input of [allChroma8(), allChroma10()]) {
+        expectSame(analyseFrame(input, { matrix: '709', keepDensities: true }), analyseFrameReference(input, { matrix: '709', keepDensities: true }), input)
+      }
+      fc.assert(fc.property(frames, fc.constantFrom<MatrixName>('601', '709'), (input, matrix) => {
+        expectSame(analyseFrame(input, { matrix, keepDensities: true }), analyseFrameReference(input, { matrix, keepDensities: true }), input)
+      }), { numRuns: 40 })
+    }
+    finally {
+      fastTuning.edgeEps = saved
+    }
   })
 })
