@@ -244,6 +244,22 @@ class PairTables {
     }
   }
 
+  /**
+   * The tables for a source's code range and the kernel's coefficients, built once and kept:
+   * they are a few hundred kB whose first touch costs page faults on every call otherwise.
+   * The engine is synchronous, so one set of counts per key is never in use twice at once.
+   */
+  static for(codes: number, centre: number, span: number, yScale: number, k: Kernel): PairTables {
+    const key = [codes, centre, span, yScale, k.uK, k.vK, k.rK, k.bK, k.gR, k.gB, k.cbOff, k.hs].join(',')
+    let tb = pairTableCache.get(key)
+    if (!tb) {
+      tb = new PairTables(codes, centre, span, yScale, k)
+      pairTableCache.set(key, tb)
+    }
+    tb.yCnt.fill(0); tb.cbCnt.fill(0); tb.crCnt.fill(0)
+    return tb
+  }
+
   finish(k: Kernel): void {
     const { yCnt, cbCnt, crCnt, yv, yBin, cbV, crV, cbIdx, crIdx } = this
     for (let c = 0; c < yCnt.length; c++) {
@@ -272,6 +288,8 @@ class PairTables {
     }
   }
 }
+
+const pairTableCache = new Map<string, PairTables>()
 
 /** Whole quarter codes a level moves by when `off` is added, or NaN near a bin edge. */
 function binShift(off: number, eps: number): number {
@@ -404,7 +422,7 @@ function rgb8(data: Uint8Array, width: number, height: number, ch: number, full:
 }
 
 function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
-  const tb = new PairTables(256, 128, 224, 1, k)
+  const tb = PairTables.for(256, 128, 224, 1, k)
   const pairs = stripe >> 1
   const keys = new Int32Array(pairs)
   const runs = new Int32Array(pairs)
@@ -445,7 +463,7 @@ function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe
 }
 
 function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
-  const tb = new PairTables(1024, 512, 896, 0.25, k)
+  const tb = PairTables.for(1024, 512, 896, 0.25, k)
   const stride = v210Stride(width)
   // Rows start on 128-byte boundaries, so an aligned buffer can be read a word at a time.
   const words = LITTLE_ENDIAN && data.byteOffset % 4 === 0 ? new Int32Array(data.buffer, data.byteOffset, data.length >> 2) : undefined
