@@ -10,9 +10,14 @@
 // Where nothing repeats (grain, noise) each unit is flushed with a count of one.
 //
 // Every bin and extreme is computed by the reference's own expressions in the same order,
-// so the results are bit for bit those of the reference pass, except the luma sum of 8-bit
-// R'G'B', which is added as y·count per run and may differ from the reference's pixel-by-pixel
-// sum in the last bits (Y'CbCr luma is a multiple of 1/4, so its sums are exact either way).
+// or by a route proven to land on the same value (per-code tables and counts, integer level
+// bins away from bin edges, branch-free max/min of bins), so the results are bit for bit
+// those of the reference pass, except the luma sum of 8-bit R'G'B', which is added as
+// y·count per run and may differ from the reference's pixel-by-pixel sum in the last bits
+// (Y'CbCr luma is a multiple of 1/4, so its sums are exact either way).
+//
+// Why the care over branches: on grain every out-of-range test and max/min would be a coin
+// toss for the branch predictor, which costs more than the arithmetic they guard.
 import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
 import type { Accumulators } from './accumulate'
 import { v210Stride } from './decode'
