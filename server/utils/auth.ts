@@ -31,16 +31,29 @@ export function assertCan(role: Role, permission: Permission) {
   }
 }
 
+type TeamScopedTable = typeof tables.productions | typeof tables.reels | typeof tables.frames
+
+/**
+ * A row of a team-scoped table that the user can reach with the permission, found through
+ * their membership in one query: another team's row answers 404, exactly as a missing one.
+ */
+export async function requireTeamRow<T extends TeamScopedTable>(event: H3Event, table: T, id: number, permission: Permission) {
+  const user = await requireUser(event)
+  // The three tables share id and team_id; drizzle's builder wants one concrete table type.
+  const t = table as typeof tables.reels
+  const [found] = await useDb()
+    .select({ row: t, role: tables.memberships.role })
+    .from(t)
+    .innerJoin(tables.memberships, and(eq(tables.memberships.teamId, t.teamId), eq(tables.memberships.userId, user.id)))
+    .where(eq(t.id, id))
+    .limit(1)
+  if (!found) throw createError({ statusCode: 404, statusMessage: 'Not found' })
+  assertCan(found.role, permission)
+  return { user, role: found.role as Role, row: found.row as unknown as T['$inferSelect'] }
+}
+
 /** A production the user can see with the given permission, or 404 / 403. */
 export async function requireProduction(event: H3Event, productionId: number, permission: Permission) {
-  const user = await requireUser(event)
-  const [row] = await useDb()
-    .select({ production: tables.productions, role: tables.memberships.role })
-    .from(tables.productions)
-    .innerJoin(tables.memberships, and(eq(tables.memberships.teamId, tables.productions.teamId), eq(tables.memberships.userId, user.id)))
-    .where(eq(tables.productions.id, productionId))
-    .limit(1)
-  if (!row) throw createError({ statusCode: 404, statusMessage: 'Not found' })
-  assertCan(row.role, permission)
-  return { user, role: row.role as Role, production: row.production }
+  const { row, ...rest } = await requireTeamRow(event, tables.productions, productionId, permission)
+  return { ...rest, production: row }
 }

@@ -1,34 +1,18 @@
 import type { H3Event } from 'h3'
-import { and, eq } from 'drizzle-orm'
-import type { Permission, Role } from '../../shared/utils/roles'
+import { eq } from 'drizzle-orm'
+import type { Permission } from '../../shared/utils/roles'
 import type { Db } from '../db/client'
 
-/** A reel the user can reach with the permission (joined through their membership), else 404/403. */
+/** A reel the user can reach with the permission, else 404/403. */
 export async function requireReel(event: H3Event, reelId: number, permission: Permission) {
-  const user = await requireUser(event)
-  const [row] = await useDb()
-    .select({ reel: tables.reels, role: tables.memberships.role })
-    .from(tables.reels)
-    .innerJoin(tables.memberships, and(eq(tables.memberships.teamId, tables.reels.teamId), eq(tables.memberships.userId, user.id)))
-    .where(eq(tables.reels.id, reelId))
-    .limit(1)
-  if (!row) throw createError({ statusCode: 404, statusMessage: 'Not found' })
-  assertCan(row.role, permission)
-  return { user, role: row.role as Role, reel: row.reel }
+  const { row, ...rest } = await requireTeamRow(event, tables.reels, reelId, permission)
+  return { ...rest, reel: row }
 }
 
 /** A frame the user can reach with the permission, else 404/403. */
 export async function requireFrame(event: H3Event, frameId: number, permission: Permission) {
-  const user = await requireUser(event)
-  const [row] = await useDb()
-    .select({ frame: tables.frames, role: tables.memberships.role })
-    .from(tables.frames)
-    .innerJoin(tables.memberships, and(eq(tables.memberships.teamId, tables.frames.teamId), eq(tables.memberships.userId, user.id)))
-    .where(eq(tables.frames.id, frameId))
-    .limit(1)
-  if (!row) throw createError({ statusCode: 404, statusMessage: 'Not found' })
-  assertCan(row.role, permission)
-  return { user, role: row.role as Role, frame: row.frame }
+  const { row, ...rest } = await requireTeamRow(event, tables.frames, frameId, permission)
+  return { ...rest, frame: row }
 }
 
 /**
