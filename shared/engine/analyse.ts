@@ -22,7 +22,7 @@ export { COMPOSITE_OUT_HIGH_IRE, COMPOSITE_OUT_LOW_IRE } from './accumulate'
  * their own codes and get only the level grid's half step.
  */
 export const GAMUT_MARGIN_CODE8 = 1.5
-const GAMUT_MARGIN_RGB_CODE8 = LEVEL_STEP / 2
+export const GAMUT_MARGIN_RGB_CODE8 = LEVEL_STEP / 2
 
 /** Stripe width for the density pass: 48 waveform columns at 1080p, ≈ 70 kB of each density. */
 const DENSITY_STRIPE = 2 * STRIPE_ALIGN
@@ -228,6 +228,10 @@ function rowPass(
   const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo } = k
   const dl = lv.luma; const dhi = lv.compMax; const dlo = lv.compMin; const dmx = lv.rgbMax; const dmn = lv.rgbMin
   const dr = lv.r; const dg = lv.g; const db = lv.b
+  // Module constants as locals: an imported binding is a cell load with a hole check on
+  // every use, which V8 would otherwise repeat per pixel in the loop below.
+  const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
+  const lowBand = LOW_BAND; const highChroma = HIGH_CHROMA; const highLuma = HIGH_LUMA
   let sumY = 0; let yMin = t.yMin; let yMax = t.yMax; let compMin = t.compMin; let compMax = t.compMax
   let cbMin = t.cbMin; let cbMax = t.cbMax; let crMin = t.crMin; let crMax = t.crMax; let cMax = t.cMax
   let compOut = 0; let gamOut = 0; let studOut = 0
@@ -241,39 +245,35 @@ function rowPass(
       const cnt = shift && x + 1 < width ? 2 : 1
       const cb = 128 + 224 * pb
       const cr = 128 + 224 * pr
-      if (cb < cbMin) cbMin = cb
-      if (cb > cbMax) cbMax = cb
-      if (cr < crMin) crMin = cr
-      if (cr > crMax) crMax = cr
+      cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
+      crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
       cbHist[(cb * hs + cbOff) | 0]! += cnt
       crHist[(cr * hs + cbOff) | 0]! += cnt
       const u = uK * pb; const v = vK * pr
       c = 219 * Math.sqrt(u * u + v * v)
-      if (c > cMax) cMax = c
+      cMax = Math.max(cMax, c)
       ro = rK * pr; bo = bK * pb; go = gR * pr + gB * pb
       mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
       mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
-      cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
+      cOut = cb < lowBand || cb >= highChroma || cr < lowBand || cr >= highChroma
     }
     const y = Y[x]!
     sumY += y
-    if (y < yMin) yMin = y
-    if (y > yMax) yMax = y
+    yMin = Math.min(yMin, y); yMax = Math.max(yMax, y)
     const hi = y + c; const lo = y - c
-    if (hi > compMax) compMax = hi
-    if (lo < compMin) compMin = lo
+    compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
     const mx = y + mxo; const mn = y + mno
-    dl[(y * LV_SCALE + LV_OFF) | 0]!++
-    dhi[(hi * LV_SCALE + LV_OFF) | 0]!++
-    dlo[(lo * LV_SCALE + LV_OFF) | 0]!++
-    dmx[(mx * LV_SCALE + LV_OFF) | 0]!++
-    dmn[(mn * LV_SCALE + LV_OFF) | 0]!++
-    dr[((y + ro) * LV_SCALE + LV_OFF) | 0]!++
-    dg[((y + go) * LV_SCALE + LV_OFF) | 0]!++
-    db[((y + bo) * LV_SCALE + LV_OFF) | 0]!++
-    if (hi > COMP_HI || lo < COMP_LO) compOut++
+    dl[(y * lvScale + lvOff) | 0]!++
+    dhi[(hi * lvScale + lvOff) | 0]!++
+    dlo[(lo * lvScale + lvOff) | 0]!++
+    dmx[(mx * lvScale + lvOff) | 0]!++
+    dmn[(mn * lvScale + lvOff) | 0]!++
+    dr[((y + ro) * lvScale + lvOff) | 0]!++
+    dg[((y + go) * lvScale + lvOff) | 0]!++
+    db[((y + bo) * lvScale + lvOff) | 0]!++
+    if (hi > compHi || lo < compLo) compOut++
     if (mx > gamHi || mn < gamLo) gamOut++
-    if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut++
+    if (cOut || y < lowBand || y >= highLuma) studOut++
   }
   t.sumY += sumY; t.yMin = yMin; t.yMax = yMax; t.compMin = compMin; t.compMax = compMax
   t.cbMin = cbMin; t.cbMax = cbMax; t.crMin = crMin; t.crMax = crMax; t.cMax = cMax
@@ -288,6 +288,12 @@ function rowPassWithDensities(
   const dl = lv.luma; const dhi = lv.compMax; const dlo = lv.compMin; const dmx = lv.rgbMax; const dmn = lv.rgbMin
   const dr = lv.r; const dg = lv.g; const db = lv.b
   const { colOf, rowOff, luma: wl, flat: wf, r: wr, g: wg, b: wb, vector } = d
+  // Module constants as locals: an imported binding is a cell load with a hole check on
+  // every use, which V8 would otherwise repeat per pixel in the loop below.
+  const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
+  const lowBand = LOW_BAND; const highChroma = HIGH_CHROMA; const highLuma = HIGH_LUMA
+  const vsExt = VECTORSCOPE_EXTENT; const vsScale = VS_SCALE; const vsLast = VS_LAST
+  const vsSize = VECTORSCOPE_SIZE
   let sumY = 0; let yMin = t.yMin; let yMax = t.yMax; let compMin = t.compMin; let compMax = t.compMax
   let cbMin = t.cbMin; let cbMax = t.cbMax; let crMin = t.crMin; let crMax = t.crMax; let cMax = t.cMax
   let compOut = 0; let gamOut = 0; let studOut = 0
@@ -301,45 +307,41 @@ function rowPassWithDensities(
       const cnt = shift && x + 1 < width ? 2 : 1
       const cb = 128 + 224 * pb
       const cr = 128 + 224 * pr
-      if (cb < cbMin) cbMin = cb
-      if (cb > cbMax) cbMax = cb
-      if (cr < crMin) crMin = cr
-      if (cr > crMax) crMax = cr
+      cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
+      crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
       cbHist[(cb * hs + cbOff) | 0]! += cnt
       crHist[(cr * hs + cbOff) | 0]! += cnt
       const u = uK * pb; const v = vK * pr
       c = 219 * Math.sqrt(u * u + v * v)
-      if (c > cMax) cMax = c
+      cMax = Math.max(cMax, c)
       ro = rK * pr; bo = bK * pb; go = gR * pr + gB * pb
       mxo = ro > go ? (ro > bo ? ro : bo) : (go > bo ? go : bo)
       mno = ro < go ? (ro < bo ? ro : bo) : (go < bo ? go : bo)
-      cOut = cb < LOW_BAND || cb >= HIGH_CHROMA || cr < LOW_BAND || cr >= HIGH_CHROMA
-      let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
-      let vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
-      vc = vc < 0 ? 0 : vc > VS_LAST ? VS_LAST : vc
-      vr = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
-      vector[vr * VECTORSCOPE_SIZE + vc]! += cnt
+      cOut = cb < lowBand || cb >= highChroma || cr < lowBand || cr >= highChroma
+      let vc = Math.floor((u + vsExt) * vsScale)
+      let vr = Math.floor((vsExt - v) * vsScale)
+      vc = vc < 0 ? 0 : vc > vsLast ? vsLast : vc
+      vr = vr < 0 ? 0 : vr > vsLast ? vsLast : vr
+      vector[vr * vsSize + vc]! += cnt
     }
     const col = colOf[x0 + x]!
     const y = Y[x]!
     sumY += y
-    if (y < yMin) yMin = y
-    if (y > yMax) yMax = y
+    yMin = Math.min(yMin, y); yMax = Math.max(yMax, y)
     const hi = y + c; const lo = y - c
-    if (hi > compMax) compMax = hi
-    if (lo < compMin) compMin = lo
+    compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
     const mx = y + mxo; const mn = y + mno
-    const iy = (y * LV_SCALE + LV_OFF) | 0
-    const ihi = (hi * LV_SCALE + LV_OFF) | 0
-    const ilo = (lo * LV_SCALE + LV_OFF) | 0
-    const ir = ((y + ro) * LV_SCALE + LV_OFF) | 0
-    const ig = ((y + go) * LV_SCALE + LV_OFF) | 0
-    const ib = ((y + bo) * LV_SCALE + LV_OFF) | 0
+    const iy = (y * lvScale + lvOff) | 0
+    const ihi = (hi * lvScale + lvOff) | 0
+    const ilo = (lo * lvScale + lvOff) | 0
+    const ir = ((y + ro) * lvScale + lvOff) | 0
+    const ig = ((y + go) * lvScale + lvOff) | 0
+    const ib = ((y + bo) * lvScale + lvOff) | 0
     dl[iy]!++
     dhi[ihi]!++
     dlo[ilo]!++
-    dmx[(mx * LV_SCALE + LV_OFF) | 0]!++
-    dmn[(mn * LV_SCALE + LV_OFF) | 0]!++
+    dmx[(mx * lvScale + lvOff) | 0]!++
+    dmn[(mn * lvScale + lvOff) | 0]!++
     dr[ir]!++
     dg[ig]!++
     db[ib]!++
@@ -349,9 +351,9 @@ function rowPassWithDensities(
     wr[rowOff[ir]! + col]!++
     wg[rowOff[ig]! + col]!++
     wb[rowOff[ib]! + col]!++
-    if (hi > COMP_HI || lo < COMP_LO) compOut++
+    if (hi > compHi || lo < compLo) compOut++
     if (mx > gamHi || mn < gamLo) gamOut++
-    if (cOut || y < LOW_BAND || y >= HIGH_LUMA) studOut++
+    if (cOut || y < lowBand || y >= highLuma) studOut++
   }
   t.sumY += sumY; t.yMin = yMin; t.yMax = yMax; t.compMin = compMin; t.compMax = compMax
   t.cbMin = cbMin; t.cbMax = cbMax; t.crMin = crMin; t.crMax = crMax; t.cMax = cMax

@@ -118,77 +118,72 @@ class Queue {
 }
 
 /**
- * Measures queued R'G'B' pixels (a, b, c = R, G, B codes) with the reference's arithmetic:
- * the read of decode.ts, then its rowPass.
+ * Measures queued R'G'B' pixels (a, b, c = R, G, B codes; n = run length) with the
+ * reference's arithmetic: the read of decode.ts, then its rowPass, with the per-channel
+ * levels counted per code (RgbTables).
  */
-function rgbBatch(k: Kernel, q: Queue, kr: number, kb: number, cbDiv: number, crDiv: number, scale: number, offset: number): void {
-  const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo, wave, rowOff, colOf } = k
-  const { dl, dhi, dlo, dmx, dmn, dr, dg, db, cbH, crH, wl, wf, wr, wg, wb, vec } = k
+function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, kr: number, kb: number, cbDiv: number, crDiv: number, rowC: Int32Array): void {
+  const { uK, vK, cbOff, hs, wave, rowOff, colOf } = k
+  const { dl, dhi, dlo, cbH, crH, wl, wf, wr, wg, wb, vec } = k
+  const { S, out: gOut, cR, cG, cB, cMx, cMn } = tb
+  // Module constants as locals: an imported binding is a cell load with a hole check on
+  // every use, which V8 would otherwise repeat per pixel in the loop below.
+  const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
+  const lowBand = LOW_BAND; const highChroma = HIGH_CHROMA; const highLuma = HIGH_LUMA
+  const vsExt = VECTORSCOPE_EXTENT; const vsScale = VS_SCALE; const vsLast = VS_LAST
+  const vsSize = VECTORSCOPE_SIZE
   let sumY = 0; let yMin = k.yMin; let yMax = k.yMax; let compMin = k.compMin; let compMax = k.compMax
   let cbMin = k.cbMin; let cbMax = k.cbMax; let crMin = k.crMin; let crMax = k.crMax; let cMax = k.cMax
   let compOut = 0; let gamOut = 0; let studOut = 0
   const { x: QX, a: QR, b: QG, c: QB, n: QN } = q
   for (let e = 0, len = q.len; e < len; e++) {
     const n = QN[e]!
-    const rr = QR[e]! * scale + offset
-    const gg = QG[e]! * scale + offset
-    const bb = QB[e]! * scale + offset
+    const R = QR[e]!; const G = QG[e]!; const B = QB[e]!
+    const rr = S[R]!; const gg = S[G]!; const bb = S[B]!
     const yu = gg + kr * (rr - gg) + kb * (bb - gg)
     const y = 16 + 219 * yu
     const pb = (bb - yu) / cbDiv
     const pr = (rr - yu) / crDiv
-    // Chroma (rowPass, per sample).
     const cb = 128 + 224 * pb
     const cr = 128 + 224 * pr
-    if (cb < cbMin) cbMin = cb
-    if (cb > cbMax) cbMax = cb
-    if (cr < crMin) crMin = cr
-    if (cr > crMax) crMax = cr
+    cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
+    crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
     cbH[(cb * hs + cbOff) | 0]! += n
     crH[(cr * hs + cbOff) | 0]! += n
     const u = uK * pb; const v = vK * pr
     const c = 219 * Math.sqrt(u * u + v * v)
-    if (c > cMax) cMax = c
-    const ro = rK * pr; const bo = bK * pb; const go = gR * pr + gB * pb
-    const cOut = +(cb < LOW_BAND) | +(cb >= HIGH_CHROMA) | +(cr < LOW_BAND) | +(cr >= HIGH_CHROMA)
-    // Luma (rowPass, per pixel).
+    cMax = Math.max(cMax, c)
     sumY += y * n
-    if (y < yMin) yMin = y
-    if (y > yMax) yMax = y
+    yMin = Math.min(yMin, y); yMax = Math.max(yMax, y)
     const hi = y + c; const lo = y - c
-    if (hi > compMax) compMax = hi
-    if (lo < compMin) compMin = lo
-    const yr = y + ro; const yg = y + go; const yb = y + bo
-    const iy = (y * LV_SCALE + LV_OFF) | 0
-    const ihi = (hi * LV_SCALE + LV_OFF) | 0
-    const ilo = (lo * LV_SCALE + LV_OFF) | 0
-    const ir = (yr * LV_SCALE + LV_OFF) | 0
-    const ig = (yg * LV_SCALE + LV_OFF) | 0
-    const ib = (yb * LV_SCALE + LV_OFF) | 0
+    compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
+    const iy = (y * lvScale + lvOff) | 0
+    const ihi = (hi * lvScale + lvOff) | 0
+    const ilo = (lo * lvScale + lvOff) | 0
     dl[iy]! += n
     dhi[ihi]! += n
     dlo[ilo]! += n
-    dmx[max3(ir, ig, ib)]! += n
-    dmn[min3(ir, ig, ib)]! += n
-    dr[ir]! += n
-    dg[ig]! += n
-    db[ib]! += n
-    compOut += (+(hi > COMP_HI) | +(lo < COMP_LO)) * n
-    gamOut += (+(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)) * n
-    studOut += (cOut | +(y < LOW_BAND) | +(y >= HIGH_LUMA)) * n
+    cR[R]! += n
+    cG[G]! += n
+    cB[B]! += n
+    cMx[max3(R, G, B)]! += n
+    cMn[min3(R, G, B)]! += n
+    compOut += (+(hi > compHi) | +(lo < compLo)) * n
+    gamOut += (gOut[R]! | gOut[G]! | gOut[B]!) * n
+    studOut += (+(cb < lowBand) | +(cb >= highChroma) | +(cr < lowBand) | +(cr >= highChroma) | +(y < lowBand) | +(y >= highLuma)) * n
     if (wave) {
-      let vc = Math.floor((u + VECTORSCOPE_EXTENT) * VS_SCALE)
-      let vr = Math.floor((VECTORSCOPE_EXTENT - v) * VS_SCALE)
-      vc = vc < 0 ? 0 : vc > VS_LAST ? VS_LAST : vc
-      vr = vr < 0 ? 0 : vr > VS_LAST ? VS_LAST : vr
-      vec[vr * VECTORSCOPE_SIZE + vc]! += n
+      let vc = ((u + vsExt) * vsScale) | 0
+      let vr = ((vsExt - v) * vsScale) | 0
+      vc = vc < 0 ? 0 : vc > vsLast ? vsLast : vc
+      vr = vr < 0 ? 0 : vr > vsLast ? vsLast : vr
+      vec[vr * vsSize + vc]! += n
       const col = colOf[QX[e]!]!
       wl[rowOff[iy]! + col]! += n
       wf[rowOff[ihi]! + col]! += n
       wf[rowOff[ilo]! + col]! += n
-      wr[rowOff[ir]! + col]! += n
-      wg[rowOff[ig]! + col]! += n
-      wb[rowOff[ib]! + col]! += n
+      wr[rowC[R]! + col]! += n
+      wg[rowC[G]! + col]! += n
+      wb[rowC[B]! + col]! += n
     }
   }
   q.len = 0
@@ -314,6 +309,10 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
   const { gamHi, gamLo, wave, rowOff, colOf } = k
   const { dhi, dlo, dmx, dmn, dr, dg, db, wl, wf, wr, wg, wb, vec } = k
   const { yCnt, cbCnt, crCnt, yv, yBin, yOut, u: uT, bo: boT, gb: gbT, cbOut, vcT, v: vT, ro: roT, gr: grT, crOut, vrT } = tb
+  // Module constants as locals: an imported binding is a cell load with a hole check on
+  // every use, which V8 would otherwise repeat per pixel in the loop below.
+  const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
+  const vsSize = VECTORSCOPE_SIZE
   const eps = fastTuning.edgeEps
   let compMin = k.compMin; let compMax = k.compMax; let cMax = k.cMax
   let compOut = 0; let gamOut = 0; let studOut = 0
@@ -326,11 +325,11 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
     crCnt[crc]! += 2 * n
     const u = uT[cbc]!; const v = vT[crc]!
     const c = 219 * Math.sqrt(u * u + v * v)
-    if (c > cMax) cMax = c
+    cMax = Math.max(cMax, c)
     const ro = roT[crc]!; const bo = boT[cbc]!; const go = grT[crc]! + gbT[cbc]!
     const cOut = cbOut[cbc]! | crOut[crc]!
     const x = QX[e]!
-    if (wave) vec[vrT[crc]! * VECTORSCOPE_SIZE + vcT[cbc]!]! += 2 * n
+    if (wave) vec[vrT[crc]! * vsSize + vcT[cbc]!]! += 2 * n
     const qhi = binShift(c, eps); const qlo = binShift(-c, eps)
     const qr = binShift(ro, eps); const qg = binShift(go, eps); const qb = binShift(bo, eps)
     const exact = qhi === qhi && qlo === qlo && qr === qr && qg === qg && qb === qb
@@ -340,8 +339,7 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
       yCnt[yc]! += n
       const y = yv[yc]!
       const hi = y + c; const lo = y - c
-      if (hi > compMax) compMax = hi
-      if (lo < compMin) compMin = lo
+      compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
       const yr = y + ro; const yg = y + go; const yb = y + bo
       let ihi: number, ilo: number, ir: number, ig: number, ib: number, imx: number, imn: number
       if (exact) {
@@ -349,11 +347,11 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
         ihi = K + qhi; ilo = K + qlo; ir = K + qr; ig = K + qg; ib = K + qb; imx = K + qmx; imn = K + qmn
       }
       else {
-        ihi = (hi * LV_SCALE + LV_OFF) | 0
-        ilo = (lo * LV_SCALE + LV_OFF) | 0
-        ir = (yr * LV_SCALE + LV_OFF) | 0
-        ig = (yg * LV_SCALE + LV_OFF) | 0
-        ib = (yb * LV_SCALE + LV_OFF) | 0
+        ihi = (hi * lvScale + lvOff) | 0
+        ilo = (lo * lvScale + lvOff) | 0
+        ir = (yr * lvScale + lvOff) | 0
+        ig = (yg * lvScale + lvOff) | 0
+        ib = (yb * lvScale + lvOff) | 0
         imx = max3(ir, ig, ib); imn = min3(ir, ig, ib)
       }
       dhi[ihi]! += n
@@ -363,7 +361,7 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
       dr[ir]! += n
       dg[ig]! += n
       db[ib]! += n
-      compOut += (+(hi > COMP_HI) | +(lo < COMP_LO)) * n
+      compOut += (+(hi > compHi) | +(lo < compLo)) * n
       gamOut += (+(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)) * n
       studOut += (cOut | yOut[yc]!) * n
       if (wave) {
@@ -382,49 +380,213 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
   k.compOut += compOut; k.gamOut += gamOut; k.studOut += studOut
 }
 
+/**
+ * Per-code tables for 8-bit R'G'B': each channel's value as decode.ts reads it (code · scale +
+ * offset, the same double), the level bin of that channel's R'/G'/B' level, whether that
+ * level lies outside the gamut limits, and per-code counts. The bin of the reference's
+ * y + ro (ro = rK·pr) is the bin of 16 + 219·R' because the two differ by rounding alone
+ * (about 1e-13) while every 8-bit level sits at least 1/255 of a bin from a bin edge and an
+ * eighth of a code from the gamut limits; tests/unit/engine/fast.test.ts checks this for
+ * every one of the 2^24 triples, both matrices and both ranges.
+ */
+class RgbTables {
+  readonly S = new Float64Array(256)
+  readonly bin = new Int32Array(256)
+  readonly out = new Int32Array(256)
+  readonly cR = new Uint32Array(256); readonly cG = new Uint32Array(256); readonly cB = new Uint32Array(256)
+  readonly cMx = new Uint32Array(256); readonly cMn = new Uint32Array(256)
+  constructor(scale: number, offset: number, gamHi: number, gamLo: number) {
+    for (let c = 0; c < 256; c++) {
+      const v = c * scale + offset
+      const level = 16 + 219 * v
+      this.S[c] = v
+      this.bin[c] = (level * LV_SCALE + LV_OFF) | 0
+      this.out[c] = +(level > gamHi) | +(level < gamLo)
+    }
+  }
+
+  static for(scale: number, offset: number, k: Kernel): RgbTables {
+    const key = [scale, offset, k.gamHi, k.gamLo].join(',')
+    let tb = rgbTableCache.get(key)
+    if (!tb) {
+      tb = new RgbTables(scale, offset, k.gamHi, k.gamLo)
+      rgbTableCache.set(key, tb)
+    }
+    tb.cR.fill(0); tb.cG.fill(0); tb.cB.fill(0); tb.cMx.fill(0); tb.cMn.fill(0)
+    return tb
+  }
+
+  finish(k: Kernel): void {
+    const { bin, cR, cG, cB, cMx, cMn } = this
+    for (let c = 0; c < 256; c++) {
+      const b = bin[c]!
+      k.dr[b]! += cR[c]!; k.dg[b]! += cG[c]!; k.db[b]! += cB[c]!; k.dmx[b]! += cMx[c]!; k.dmn[b]! += cMn[c]!
+    }
+  }
+}
+
+const rgbTableCache = new Map<string, RgbTables>()
+
+/**
+ * Rows r0..r1−1 of one stripe of 8-bit R'G'B', every pixel measured on its own: the route for
+ * grain, where vertical runs are short and tracking them costs more than it saves. Returns
+ * how many pixels repeated the pixel above (keys holds the last row's pixels), so the caller
+ * can go back to folding runs when they come.
+ */
+function rgbRows(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: number, x0: number, n: number, r0: number, r1: number,
+  keys: Int32Array, kr: number, kb: number, cbDiv: number, crDiv: number, rowC: Int32Array): number {
+  const { uK, vK, cbOff, hs, wave, rowOff, colOf } = k
+  const { dl, dhi, dlo, cbH, crH, wl, wf, wr, wg, wb, vec } = k
+  const { S, out: gOut, cR, cG, cB, cMx, cMn } = tb
+  // Module constants as locals: an imported binding is a cell load with a hole check on
+  // every use, which V8 would otherwise repeat per pixel in the loop below.
+  const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
+  const lowBand = LOW_BAND; const highChroma = HIGH_CHROMA; const highLuma = HIGH_LUMA
+  const vsExt = VECTORSCOPE_EXTENT; const vsScale = VS_SCALE; const vsLast = VS_LAST
+  const vsSize = VECTORSCOPE_SIZE
+  let sumY = 0; let yMin = k.yMin; let yMax = k.yMax; let compMin = k.compMin; let compMax = k.compMax
+  let cbMin = k.cbMin; let cbMax = k.cbMax; let crMin = k.crMin; let crMax = k.crMax; let cMax = k.cMax
+  let compOut = 0; let gamOut = 0; let studOut = 0; let reps = 0
+  for (let row = r0; row < r1; row++) {
+    let i = (row * width + x0) * ch
+    for (let p = 0; p < n; p++, i += ch) {
+      const R = data[i]!; const G = data[i + 1]!; const B = data[i + 2]!
+      const key = R | (G << 8) | (B << 16)
+      reps += +(key === keys[p]!)
+      keys[p] = key
+      const rr = S[R]!; const gg = S[G]!; const bb = S[B]!
+      const yu = gg + kr * (rr - gg) + kb * (bb - gg)
+      const y = 16 + 219 * yu
+      const pb = (bb - yu) / cbDiv
+      const pr = (rr - yu) / crDiv
+      const cb = 128 + 224 * pb
+      const cr = 128 + 224 * pr
+      cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
+      crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
+      cbH[(cb * hs + cbOff) | 0]!++
+      crH[(cr * hs + cbOff) | 0]!++
+      const u = uK * pb; const v = vK * pr
+      const c = 219 * Math.sqrt(u * u + v * v)
+      cMax = Math.max(cMax, c)
+      sumY += y
+      yMin = Math.min(yMin, y); yMax = Math.max(yMax, y)
+      const hi = y + c; const lo = y - c
+      compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
+      const iy = (y * lvScale + lvOff) | 0
+      const ihi = (hi * lvScale + lvOff) | 0
+      const ilo = (lo * lvScale + lvOff) | 0
+      dl[iy]!++
+      dhi[ihi]!++
+      dlo[ilo]!++
+      cR[R]!++
+      cG[G]!++
+      cB[B]!++
+      cMx[max3(R, G, B)]!++
+      cMn[min3(R, G, B)]!++
+      compOut += +(hi > compHi) | +(lo < compLo)
+      gamOut += gOut[R]! | gOut[G]! | gOut[B]!
+      studOut += +(cb < lowBand) | +(cb >= highChroma) | +(cr < lowBand) | +(cr >= highChroma) | +(y < lowBand) | +(y >= highLuma)
+      if (wave) {
+        let vc = ((u + vsExt) * vsScale) | 0
+        let vr = ((vsExt - v) * vsScale) | 0
+        vc = vc < 0 ? 0 : vc > vsLast ? vsLast : vc
+        vr = vr < 0 ? 0 : vr > vsLast ? vsLast : vr
+        vec[vr * vsSize + vc]!++
+        const col = colOf[x0 + p]!
+        wl[rowOff[iy]! + col]!++
+        wf[rowOff[ihi]! + col]!++
+        wf[rowOff[ilo]! + col]!++
+        wr[rowC[R]! + col]!++
+        wg[rowC[G]! + col]!++
+        wb[rowC[B]! + col]!++
+      }
+    }
+  }
+  k.sumY += sumY; k.yMin = yMin; k.yMax = yMax; k.compMin = compMin; k.compMax = compMax
+  k.cbMin = cbMin; k.cbMax = cbMax; k.crMin = crMin; k.crMax = crMax; k.cMax = cMax
+  k.compOut += compOut; k.gamOut += gamOut; k.studOut += studOut
+  return reps
+}
+
+/** Which route the 8-bit R'G'B' kernel takes: chosen per stripe as it goes (auto), or one only (for the tests). */
+export const fastMode = { rgb: 'auto' as 'auto' | 'direct' | 'runs' }
+
 function rgb8(data: Uint8Array, width: number, height: number, ch: number, full: boolean, matrix: MatrixName, k: Kernel, stripe: number): void {
   const { kr, kb, cbDiv, crDiv } = MATRICES[matrix]
   // As decode.ts derives them, so every product is the reference's to the bit.
   const scale = full ? 1 / 255 : 1 / 219
   const offset = full ? 0 : -16 / 219
+  const tb = RgbTables.for(scale, offset, k)
+  const rowC = new Int32Array(256)
+  if (k.wave) for (let c = 0; c < 256; c++) rowC[c] = k.rowOff[tb.bin[c]!]!
   const keys = new Int32Array(stripe)
   const runs = new Int32Array(stripe)
   const q = new Queue(stripe)
   const { x: QX, a: QR, b: QG, c: QB, n: QN } = q
+  const queueRun = (m: number, p: number, x0: number): number => {
+    const old = keys[p]!
+    QX[m] = x0 + p; QR[m] = old & 255; QG[m] = (old >>> 8) & 255; QB[m] = old >>> 16; QN[m] = runs[p]!
+    return m + 1
+  }
   for (let x0 = 0; x0 < width; x0 += stripe) {
     const n = Math.min(stripe, width - x0)
     runs.fill(0)
-    for (let row = 0; row <= height; row++) {
-      let m = 0
-      if (row === height) {
-        // Past the last row: every run still open ends.
-        for (let p = 0; p < n; p++) {
-          const key = keys[p]!
-          QX[m] = x0 + p; QR[m] = key & 255; QG[m] = (key >>> 8) & 255; QB[m] = key >>> 16; QN[m++] = runs[p]!
+    keys.fill(-1)
+    let direct = fastMode.rgb === 'direct'
+    let busy = 0
+    let row = 0
+    while (row < height) {
+      if (direct) {
+        const r1 = Math.min(height, row + DIRECT_BLOCK)
+        const reps = rgbRows(k, tb, data, width, ch, x0, n, row, r1, keys, kr, kb, cbDiv, crDiv, rowC)
+        // Back to folding runs once most pixels repeat the one above (a graphic, a letterbox).
+        if (fastMode.rgb === 'auto' && 2 * reps > (r1 - row) * n) {
+          direct = false
+          busy = 0
+          runs.fill(0)
         }
+        row = r1
+        continue
       }
-      else {
-        let i = (row * width + x0) * ch
-        for (let p = 0; p < n; p++, i += ch) {
-          const key = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16)
-          const run = runs[p]!
-          if (key === keys[p] && run) {
-            runs[p] = run + 1
-            continue
-          }
-          if (run) {
-            const old = keys[p]!
-            QX[m] = x0 + p; QR[m] = old & 255; QG[m] = (old >>> 8) & 255; QB[m] = old >>> 16; QN[m++] = run
-          }
-          keys[p] = key
-          runs[p] = 1
+      let m = 0
+      let i = (row * width + x0) * ch
+      for (let p = 0; p < n; p++, i += ch) {
+        const key = data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16)
+        const run = runs[p]!
+        if (key === keys[p] && run) {
+          runs[p] = run + 1
+          continue
         }
+        if (run) m = queueRun(m, p, x0)
+        keys[p] = key
+        runs[p] = 1
       }
       q.len = m
-      if (m) rgbBatch(k, q, kr, kb, cbDiv, crDiv, scale, offset)
+      if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC)
+      row++
+      // Grain: when most runs end after a row or two, per-pixel measurement is cheaper.
+      busy = 2 * m > n ? busy + 1 : 0
+      if (busy >= 2 && fastMode.rgb !== 'runs') {
+        m = 0
+        for (let p = 0; p < n; p++) if (runs[p]) m = queueRun(m, p, x0)
+        q.len = m
+        if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC)
+        direct = true
+      }
+    }
+    if (!direct) {
+      // Past the last row: every run still open ends.
+      let m = 0
+      for (let p = 0; p < n; p++) if (runs[p]) m = queueRun(m, p, x0)
+      q.len = m
+      if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC)
     }
   }
+  tb.finish(k)
 }
+
+/** Rows measured per call of the per-pixel route before the repeat count is looked at. */
+const DIRECT_BLOCK = 8
 
 function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
   const tb = PairTables.for(256, 128, 224, 1, k)

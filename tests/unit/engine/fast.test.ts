@@ -7,7 +7,10 @@ import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, packV210 } from '../../../shared/engine/index'
 import { analyseFrameReference } from '../../../shared/engine/analyse'
-import { fastTuning } from '../../../shared/engine/fast'
+import { fastMode, fastTuning } from '../../../shared/engine/fast'
+import { GAMUT_MARGIN_RGB_CODE8 } from '../../../shared/engine/analyse'
+import { LV_OFF, LV_SCALE } from '../../../shared/engine/accumulate'
+import { MATRICES } from '../../../shared/engine/matrix'
 import type { FrameAnalysis, FrameInput, MatrixName } from '../../../shared/engine/index'
 
 /**
@@ -198,6 +201,67 @@ describe('fast kernels equal the reference pass', () => {
     }
     finally {
       fastTuning.edgeEps = saved
+    }
+  })
+
+  it('8-bit R\'G\'B\' measured pixel by pixel, by runs, or switching between them, gives the same', () => {
+    // The kernel picks per stripe; each route on its own must equal the reference too.
+    const saved = fastMode.rgb
+    try {
+      for (const mode of ['direct', 'runs', 'auto'] as const) {
+        fastMode.rgb = mode
+        fc.assert(fc.property(fc.tuple(shape, fc.constantFrom('rgb3', 'rgb4', 'rgbStudio')), fc.constantFrom<MatrixName>('601', '709'), ([sh, kind], matrix) => {
+          const input = frameOf({ ...sh, h: sh.h * 3 }, kind)
+          expectSame(analyseFrame(input, { matrix, keepDensities: true }), analyseFrameReference(input, { matrix, keepDensities: true }), input)
+        }), { numRuns: 30 })
+      }
+    }
+    finally {
+      fastMode.rgb = saved
+    }
+  })
+
+  it('for every one of the 2^24 8-bit triples, the R\', G\', B\' level bins and gamut flags depend on the channel code alone', () => {
+    // The 8-bit R'G'B' kernel counts R', G', B' (and their max and min) per code, where the
+    // reference bins Y' + (R'−Y') etc. per pixel. Here the reference's expressions
+    // (analyse.ts, decode.ts) are evaluated for every triple and held to the per-code bin.
+    for (const matrix of ['601', '709'] as const) {
+      const { kr, kb, kg, cbDiv, crDiv } = MATRICES[matrix]
+      const rK = 219 * crDiv; const bK = 219 * cbDiv
+      const gR = -219 * kr * crDiv / kg; const gB = -219 * kb * cbDiv / kg
+      for (const full of [true, false]) {
+        const scale = full ? 1 / 255 : 1 / 219
+        const offset = full ? 0 : -16 / 219
+        const gamHi = 235 + GAMUT_MARGIN_RGB_CODE8; const gamLo = 16 - GAMUT_MARGIN_RGB_CODE8
+        const bin = new Int32Array(256); const out = new Int32Array(256); const v = new Float64Array(256)
+        for (let c = 0; c < 256; c++) {
+          v[c] = c * scale + offset
+          const level = 16 + 219 * v[c]!
+          bin[c] = (level * LV_SCALE + LV_OFF) | 0
+          out[c] = +(level > gamHi) | +(level < gamLo)
+        }
+        let bad = 0; let outs = 0
+        for (let r = 0; r < 256; r++) {
+          const rr = v[r]!
+          for (let g = 0; g < 256; g++) {
+            const gg = v[g]!
+            for (let b = 0; b < 256; b++) {
+              const bb = v[b]!
+              const yu = gg + kr * (rr - gg) + kb * (bb - gg)
+              const y = 16 + 219 * yu
+              const pb = (bb - yu) / cbDiv; const pr = (rr - yu) / crDiv
+              const yr = y + rK * pr; const yg = y + (gR * pr + gB * pb); const yb = y + bK * pb
+              bad += +(((yr * LV_SCALE + LV_OFF) | 0) !== bin[r]) + +(((yg * LV_SCALE + LV_OFF) | 0) !== bin[g]) + +(((yb * LV_SCALE + LV_OFF) | 0) !== bin[b])
+              const gamut = +(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)
+              bad += +(gamut !== (out[r]! | out[g]! | out[b]!))
+              outs += gamut
+            }
+          }
+        }
+        expect(bad).toBe(0)
+        // Full-range codes are all legal; studio-range codes below 16 or above 235 are not.
+        expect(outs).toBe(full ? 0 : 2 ** 24 - 220 ** 3)
+      }
     }
   })
 })
