@@ -431,7 +431,8 @@ const rgbTableCache = new Map<string, RgbTables>()
  * Rows r0..r1−1 of one stripe of 8-bit R'G'B', every pixel measured on its own: the route for
  * grain, where vertical runs are short and tracking them costs more than it saves. Returns
  * how many pixels repeated the pixel above (keys holds the last row's pixels), so the caller
- * can go back to folding runs when they come.
+ * can go back to folding runs when they come. No test in the loop is skipped for input that
+ * cannot fail it: a loop-invariant branch around them cost V8 more than the tests themselves.
  */
 function rgbRows(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: number, x0: number, n: number, r0: number, r1: number,
   keys: Int32Array, kr: number, kb: number, cbDiv: number, crDiv: number, rowC: Int32Array): number {

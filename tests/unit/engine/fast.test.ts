@@ -9,7 +9,7 @@ import { analyseFrame, packV210 } from '../../../shared/engine/index'
 import { analyseFrameReference } from '../../../shared/engine/analyse'
 import { fastMode, fastTuning } from '../../../shared/engine/fast'
 import { GAMUT_MARGIN_RGB_CODE8 } from '../../../shared/engine/analyse'
-import { LV_OFF, LV_SCALE } from '../../../shared/engine/accumulate'
+import { HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE } from '../../../shared/engine/accumulate'
 import { MATRICES } from '../../../shared/engine/matrix'
 import type { FrameAnalysis, FrameInput, MatrixName } from '../../../shared/engine/index'
 
@@ -221,7 +221,7 @@ describe('fast kernels equal the reference pass', () => {
     }
   })
 
-  it('for every one of the 2^24 8-bit triples, the R\', G\', B\' level bins and gamut flags depend on the channel code alone', () => {
+  it('for every one of the 2^24 8-bit triples, the R\', G\', B\' level bins and gamut flags depend on the channel code alone, and full range stays legal', () => {
     // The 8-bit R'G'B' kernel counts R', G', B' (and their max and min) per code, where the
     // reference bins Y' + (R'−Y') etc. per pixel. Here the reference's expressions
     // (analyse.ts, decode.ts) are evaluated for every triple and held to the per-code bin.
@@ -240,7 +240,7 @@ describe('fast kernels equal the reference pass', () => {
           bin[c] = (level * LV_SCALE + LV_OFF) | 0
           out[c] = +(level > gamHi) | +(level < gamLo)
         }
-        let bad = 0; let outs = 0
+        let bad = 0; let outs = 0; let studio = 0
         for (let r = 0; r < 256; r++) {
           const rr = v[r]!
           for (let g = 0; g < 256; g++) {
@@ -255,12 +255,17 @@ describe('fast kernels equal the reference pass', () => {
               const gamut = +(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)
               bad += +(gamut !== (out[r]! | out[g]! | out[b]!))
               outs += gamut
+              const cb = 128 + 224 * pb; const cr = 128 + 224 * pr
+              studio += +(cb < LOW_BAND) | +(cb >= HIGH_CHROMA) | +(cr < LOW_BAND) | +(cr >= HIGH_CHROMA) | +(y < LOW_BAND) | +(y >= HIGH_LUMA)
             }
           }
         }
         expect(bad).toBe(0)
         // Full-range codes are all legal; studio-range codes below 16 or above 235 are not.
         expect(outs).toBe(full ? 0 : 2 ** 24 - 220 ** 3)
+        // Nor does any full-range triple leave the studio range as Y'CbCr (BT.601-7 §2.5 scaling).
+        if (full) expect(studio).toBe(0)
+        else expect(studio).toBeGreaterThan(0)
       }
     }
   })
