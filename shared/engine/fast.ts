@@ -72,8 +72,11 @@ class Kernel {
 export function fastPass(input: FrameInput, matrix: MatrixName, acc: Accumulators, stripe: number): boolean {
   const k = new Kernel(acc)
   if (input.kind === 'rgb' && input.bitDepth === 8) rgb8(input.data as Uint8Array, input.width, input.height, input.channels, input.range === 'full', matrix, k, stripe)
-  else if (input.kind === 'uyvy') uyvy(input.data, input.width, input.height, k, stripe)
-  else if (input.kind === 'v210') v210(input.data, input.width, input.height, k, stripe)
+  // The per-code tables are folded here rather than at the end of the kernels: V8 compiles
+  // a kernel while its loop runs (on-stack replacement), before the code after the loop has
+  // ever run, and a call there with no type feedback deoptimised the kernel on every frame.
+  else if (input.kind === 'uyvy') uyvy(input.data, input.width, input.height, k, stripe).finish(k)
+  else if (input.kind === 'v210') v210(input.data, input.width, input.height, k, stripe).finish(k)
   else return false
   k.finish(acc)
   return true
@@ -589,7 +592,7 @@ function rgb8(data: Uint8Array, width: number, height: number, ch: number, full:
 /** Rows measured per call of the per-pixel route before the repeat count is looked at. */
 const DIRECT_BLOCK = 8
 
-function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
+function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): PairTables {
   const tb = PairTables.for(256, 128, 224, 1, k)
   const pairs = stripe >> 1
   const keys = new Int32Array(pairs)
@@ -627,10 +630,10 @@ function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe
       if (m) pairBatch(k, q, tb)
     }
   }
-  tb.finish(k)
+  return tb
 }
 
-function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): void {
+function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): PairTables {
   const tb = PairTables.for(1024, 512, 896, 0.25, k)
   const stride = v210Stride(width)
   // Rows start on 128-byte boundaries, so an aligned buffer can be read a word at a time.
@@ -678,7 +681,7 @@ function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe
       if (m) pairBatch(k, q, tb)
     }
   }
-  tb.finish(k)
+  return tb
 }
 
 /**
