@@ -9,6 +9,13 @@ import type { RgbaImage } from '../../../shared/engine/index'
 import { uyvyRow } from './helpers'
 
 const px = (img: RgbaImage, x: number, y: number) => Array.from(img.data.subarray((y * img.width + x) * 4, (y * img.width + x) * 4 + 4))
+const snapshot = (img: RgbaImage): RgbaImage => ({ ...img, data: img.data.slice() })
+/** Index of the first byte where two images differ, −1 when they are the same (cheaper than a deep equal of a megabyte). */
+const firstDiff = (a: RgbaImage, b: RgbaImage) => {
+  if (a.width !== b.width || a.height !== b.height) return 0
+  for (let i = 0; i < a.data.length; i++) if (a.data[i] !== b.data[i]) return i
+  return -1
+}
 
 describe('waveform density', () => {
   it('puts each pixel at its IRE row in its column; flat holds both composite extremes', () => {
@@ -45,6 +52,20 @@ describe('waveform density', () => {
       expect(px(img, img.width - 1, y75)).not.toEqual([...PALETTE.background, 255])
     }
     expect(renderWaveform(w, 'rgb').width).toBeGreaterThan(renderWaveform(w, 'luma').width * 2)
+  })
+
+  it('draws each image on a fresh copy of the graticule: a trace never carries over to the next image', () => {
+    // Computed: the same density must give the same image whatever was drawn before it.
+    const white = analyseFrame(uyvyRow([[235, 235, 128, 128]], 4), { keepDensities: true })
+    const black = analyseFrame(uyvyRow([[16, 16, 128, 128]], 4), { keepDensities: true })
+    for (const mode of ['luma', 'flat', 'both', 'rgb'] as const) {
+      const first = snapshot(renderWaveform(black.waveform!, mode))
+      renderWaveform(white.waveform!, mode)
+      expect(firstDiff(renderWaveform(black.waveform!, mode), first)).toBe(-1)
+    }
+    const vFirst = snapshot(renderVectorscope(black.vectorscope!))
+    renderVectorscope(analyseFrame(uyvyRow([[65, 65, 100, 212]], 2), { keepDensities: true }).vectorscope!)
+    expect(firstDiff(renderVectorscope(black.vectorscope!), vFirst)).toBe(-1)
   })
 })
 
