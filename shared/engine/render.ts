@@ -1,4 +1,5 @@
 import { EngineInputError, makeRowBuffers, makeRowSource } from './decode'
+import type { RowBuffers } from './decode'
 import { resolveMatrix } from './analyse'
 import { barTargets, MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
 import { fromScale, ireToCode8 } from './scales'
@@ -311,56 +312,169 @@ export function renderHistogram(h: Histograms, opts: { height?: number } = {}): 
   return cv.image()
 }
 
-interface OverlayTest { q: 'luma' | 'composite' | 'rgb' | 'cb' | 'cr', max: boolean, t: number }
+export interface RangeOverlayOptions {
+  matrix?: MatrixName
+  /**
+   * Widest image wanted: a wider frame is drawn straight at this width (height in proportion)
+   * instead of full size and then scaled, which cost the worker more than the marks did.
+   */
+  maxWidth?: number
+  /** Also return the same picture without marks (e.g. to make a thumbnail from). */
+  withPicture?: boolean
+}
+
+export interface RangeOverlayImage extends RgbaImage {
+  picture?: RgbaImage
+}
+
+const OVERLAY_HIGH = 1
+const OVERLAY_LOW = 2
 
 /**
  * The frame as RGBA (R'G'B' clipped to 0..255 for display) with every pixel beyond a limit
- * of the spec painted: one colour for too high, another for too low.
+ * of the spec painted: one colour for too high, another for too low (too high wins where a
+ * pixel breaks both kinds, which only illegal Y'CbCr can).
+ *
+ * Drawn smaller than the frame, each image pixel stands for a block of frame pixels: the
+ * picture is the block's average, and the block is painted if ANY of its pixels is beyond a
+ * limit, so a lone hot pixel is never averaged away. Every frame pixel is tested, through the
+ * engine's own row decoding and the spec's limits, so the marks agree with the verdict.
  */
-export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: { matrix?: MatrixName } = {}): RgbaImage {
+export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: RangeOverlayOptions = {}): RangeOverlayImage {
   const matrix = resolveMatrix(opts.matrix)
   const src = makeRowSource(input, matrix)
   const { width, height } = src
-  if (width * height > 64e6) throw new EngineInputError('frame too large for an overlay')
-  const tests: OverlayTest[] = spec.limits.map(l => ({
-    q: l.quantity, max: l.bound === 'max', t: fromScale(l.value, l.unit as LevelScale),
-  }))
-  const m = MATRICES[matrix]
-  const uK = U_WEIGHT * m.cbDiv
-  const vK = V_WEIGHT * m.crDiv
-  const out = new Uint8ClampedArray(width * height * 4)
+  const maxWidth = opts.maxWidth === undefined ? width : Math.max(1, Math.floor(opts.maxWidth))
+  const outW = Math.min(width, maxWidth)
+  const outH = outW === width ? height : Math.max(1, Math.round(height * outW / width))
+  if (outW * outH > 64e6) throw new EngineInputError('frame too large for an overlay')
+
+  const lim = overlayLimits(spec, matrix)
+  // Block edges: frame column x belongs to image column ⌊x·outW/width⌋, likewise for rows,
+  // so every frame pixel falls in exactly one block and no block is empty.
+  const colOf = new Int32Array(width)
+  const colCount = new Float64Array(outW)
+  for (let x = 0; x < width; x++) { const c = Math.floor(x * outW / width); colOf[x] = c; colCount[c] = colCount[c]! + 1 }
+  const acc: OverlayAccumulator = {
+    r: new Float64Array(outW), g: new Float64Array(outW), b: new Float64Array(outW), flags: new Uint8Array(outW), colOf,
+    pixel: new Uint8Array(width),
+  }
+  const out = new Uint8ClampedArray(outW * outH * 4)
+  const pic = opts.withPicture ? new Uint8ClampedArray(outW * outH * 4) : undefined
   const buf = makeRowBuffers(width)
-  const hi = PALETTE.overlayHigh; const lo = PALETTE.overlayLow
+
+  let outRow = 0
+  let rowsIn = 0
   for (let row = 0; row < height; row++) {
     src.readRow(row, buf)
-    for (let x = 0; x < width; x++) {
-      const o = (row * width + x) * 4
-      const y = buf.y[x]!
-      const u = uK * buf.pb[x]!; const v = vK * buf.pr[x]!
-      const c = 219 * Math.sqrt(u * u + v * v)
-      const r = buf.r[x]!; const g = buf.g[x]!; const b = buf.b[x]!
-      let mark: Rgb | undefined
-      for (const t of tests) {
-        let val: number
-        switch (t.q) {
-          case 'luma': val = y; break
-          case 'composite': val = t.max ? y + c : y - c; break
-          case 'rgb': val = 16 + 219 * (t.max ? Math.max(r, g, b) : Math.min(r, g, b)); break
-          case 'cb': val = 128 + 224 * buf.pb[x]!; break
-          case 'cr': val = 128 + 224 * buf.pr[x]!; break
-        }
-        // A quarter code of slack, as the verdict's level bins have (levels.ts).
-        if (t.max ? val > t.t + 0.125 : val < t.t - 0.125) { mark = t.max ? hi : lo; break }
-      }
-      if (mark) {
-        out[o] = mark[0]; out[o + 1] = mark[1]; out[o + 2] = mark[2]
-      }
-      else {
-        // Uint8ClampedArray rounds and clips on store.
-        out[o] = r * 255; out[o + 1] = g * 255; out[o + 2] = b * 255
-      }
-      out[o + 3] = 255
+    markRow(buf, width, lim, acc)
+    rowsIn++
+    // The last frame row of this image row's block.
+    if (Math.floor((row + 1) * outH / height) === outRow + 1 || row === height - 1) {
+      flushRow(acc, colCount, rowsIn, out, pic, outRow * outW * 4)
+      rowsIn = 0
+      outRow++
     }
   }
-  return { width, height, data: out }
+  const img: RangeOverlayImage = { width: outW, height: outH, data: out }
+  if (pic) img.picture = { width: outW, height: outH, data: pic }
+  return img
+}
+
+/**
+ * A spec's limits folded to one threshold per quantity and side (the strictest). A side with
+ * no limit is ±Infinity, and a quantity with neither is not computed at all.
+ */
+interface OverlayLimits {
+  yHi: number, yLo: number, cHi: number, cLo: number, rgbHi: number, rgbLo: number
+  cbHi: number, cbLo: number, crHi: number, crLo: number
+  uK: number, vK: number
+}
+
+function overlayLimits(spec: DeliverySpec, matrix: MatrixName): OverlayLimits {
+  const m = MATRICES[matrix]
+  const l: OverlayLimits = {
+    yHi: Infinity, yLo: -Infinity, cHi: Infinity, cLo: -Infinity, rgbHi: Infinity, rgbLo: -Infinity,
+    cbHi: Infinity, cbLo: -Infinity, crHi: Infinity, crLo: -Infinity,
+    uK: U_WEIGHT * m.cbDiv, vK: V_WEIGHT * m.crDiv,
+  }
+  for (const s of spec.limits) {
+    const t = fromScale(s.value, s.unit as LevelScale)
+    // A quarter code of slack, as the verdict's level bins have (levels.ts).
+    const hi = t + 0.125; const lo = t - 0.125
+    const max = s.bound === 'max'
+    switch (s.quantity) {
+      case 'luma': if (max) l.yHi = Math.min(l.yHi, hi); else l.yLo = Math.max(l.yLo, lo); break
+      case 'composite': if (max) l.cHi = Math.min(l.cHi, hi); else l.cLo = Math.max(l.cLo, lo); break
+      case 'rgb': if (max) l.rgbHi = Math.min(l.rgbHi, hi); else l.rgbLo = Math.max(l.rgbLo, lo); break
+      case 'cb': if (max) l.cbHi = Math.min(l.cbHi, hi); else l.cbLo = Math.max(l.cbLo, lo); break
+      case 'cr': if (max) l.crHi = Math.min(l.crHi, hi); else l.crLo = Math.max(l.crLo, lo); break
+    }
+  }
+  return l
+}
+
+const limited = (hi: number, lo: number) => hi !== Infinity || lo !== -Infinity
+
+/** Per image column of the block row being gathered: sums of the clipped picture and the OR of the marks. */
+interface OverlayAccumulator {
+  r: Float64Array, g: Float64Array, b: Float64Array, flags: Uint8Array, colOf: Int32Array
+  /** Marks of the frame row at hand, one per frame pixel. */
+  pixel: Uint8Array
+}
+
+/**
+ * Marks one frame row and adds it to its block row. One short loop per quantity the spec
+ * limits (most specs limit two or three): a single loop testing all five quantities against
+ * mostly-infinite thresholds cost more than the row decoding itself.
+ */
+function markRow(buf: RowBuffers, width: number, l: OverlayLimits, a: OverlayAccumulator): void {
+  const { y: Y, pb: PB, pr: PR, r: R, g: G, b: B } = buf
+  const { r: sR, g: sG, b: sB, flags, colOf } = a
+  const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo, uK, vK } = l
+  const comp = limited(cHi, cLo); const rgb = limited(rgbHi, rgbLo); const chroma = limited(cbHi, cbLo) || limited(crHi, crLo)
+  for (let x = 0; x < width; x++) {
+    const y = Y[x]!; const r = R[x]!; const g = G[x]!; const b = B[x]!
+    let hi = y > yHi; let lo = y < yLo
+    if (comp) {
+      const u = uK * PB[x]!; const v = vK * PR[x]!
+      const c = 219 * Math.sqrt(u * u + v * v)
+      hi = hi || y + c > cHi; lo = lo || y - c < cLo
+    }
+    if (rgb) {
+      const mx = r > g ? (r > b ? r : b) : (g > b ? g : b)
+      const mn = r < g ? (r < b ? r : b) : (g < b ? g : b)
+      hi = hi || 16 + 219 * mx > rgbHi; lo = lo || 16 + 219 * mn < rgbLo
+    }
+    if (chroma) {
+      const cb = 128 + 224 * PB[x]!; const cr = 128 + 224 * PR[x]!
+      hi = hi || cb > cbHi || cr > crHi; lo = lo || cb < cbLo || cr < crLo
+    }
+    const ox = colOf[x]!
+    if (hi) flags[ox] = flags[ox]! | OVERLAY_HIGH
+    else if (lo) flags[ox] = flags[ox]! | OVERLAY_LOW
+    // Clipped per pixel before averaging: the picture is what a display would show.
+    sR[ox] = sR[ox]! + (r < 0 ? 0 : r > 1 ? 1 : r)
+    sG[ox] = sG[ox]! + (g < 0 ? 0 : g > 1 ? 1 : g)
+    sB[ox] = sB[ox]! + (b < 0 ? 0 : b > 1 ? 1 : b)
+  }
+}
+
+function flushRow(a: OverlayAccumulator, colCount: Float64Array, rows: number, out: Uint8ClampedArray, pic: Uint8ClampedArray | undefined, o: number): void {
+  const { r: sR, g: sG, b: sB, flags } = a
+  const hi = PALETTE.overlayHigh; const lo = PALETTE.overlayLow
+  for (let ox = 0; ox < flags.length; ox++, o += 4) {
+    const k = 255 / (colCount[ox]! * rows)
+    // Uint8ClampedArray rounds on store.
+    const r8 = sR[ox]! * k; const g8 = sG[ox]! * k; const b8 = sB[ox]! * k
+    const f = flags[ox]!
+    if (f === 0) { out[o] = r8; out[o + 1] = g8; out[o + 2] = b8 }
+    else {
+      const mark = f & OVERLAY_HIGH ? hi : lo
+      out[o] = mark[0]; out[o + 1] = mark[1]; out[o + 2] = mark[2]
+    }
+    out[o + 3] = 255
+    if (pic) { pic[o] = r8; pic[o + 1] = g8; pic[o + 2] = b8; pic[o + 3] = 255 }
+  }
+  sR.fill(0); sG.fill(0); sB.fill(0); flags.fill(0)
 }
