@@ -3,9 +3,7 @@
 // analysis row and writes nothing new.
 import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
-import sharp from 'sharp'
-import { ENGINE_VERSION, analyseFrame, renderRangeOverlay, renderVectorscope, renderWaveform } from '../shared/engine'
-import type { FrameInput, RgbaImage } from '../shared/engine/types'
+import { ENGINE_VERSION, analyseFrame } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
 import { analysisJson } from '../shared/utils/report'
 import type { Db } from '../server/db/client'
@@ -13,7 +11,7 @@ import * as t from '../server/db/schema'
 import { specForProduction } from '../server/lib/specs'
 import { keys, type Storage } from '../server/lib/storage'
 import { DecodeFileError, decodeBytes } from './lib/decode-file'
-import { renderPicture } from './lib/preview'
+import { renderFrameImages } from './lib/frame-images'
 import { UPLOAD_LIMITS } from '../shared/utils/uploads'
 
 export interface AnalyseDeps {
@@ -27,32 +25,7 @@ export interface JobLike {
   opts: { attempts?: number }
 }
 
-/** Images written per frame; the API serves them as /api/frames/:id/images/:kind. */
-export const IMAGE_KINDS = ['thumb', 'overlay', 'waveform-luma', 'waveform-flat', 'waveform-rgb', 'vectorscope'] as const
-export type ImageKind = (typeof IMAGE_KINDS)[number]
-
-const THUMB_WIDTH = 320
-const OVERLAY_WIDTH = 1280
-
-async function png(img: RgbaImage, maxWidth?: number, opts: { opaque?: boolean, compressionLevel?: number } = {}) {
-  let s = sharp(Buffer.from(img.data.buffer, img.data.byteOffset, img.data.byteLength), { raw: { width: img.width, height: img.height, channels: 4 } })
-  // An alpha channel that is 255 everywhere is a quarter of the bytes zlib has to chew.
-  if (opts.opaque) s = s.removeAlpha()
-  if (maxWidth && img.width > maxWidth) s = s.resize({ width: maxWidth })
-  // Low zlib effort: scope images are small, and the worker's time goes to throughput.
-  return new Uint8Array(await s.png({ compressionLevel: opts.compressionLevel ?? 2 }).toBuffer())
-}
-
-async function thumbnail(bytes: Uint8Array, input: FrameInput, isRaw: boolean, matrix: '601' | '709') {
-  if (isRaw) return png(renderPicture(input, matrix, THUMB_WIDTH * 2), THUMB_WIDTH)
-  // 8-bit stills are already decoded to sRGB: resizing those pixels costs a few ms, where
-  // decoding the PNG a second time cost about as much as the rest of the images together.
-  const src = input.kind === 'rgb' && input.bitDepth === 8
-    ? sharp(Buffer.from(input.data.buffer, input.data.byteOffset, input.data.byteLength), { raw: { width: input.width, height: input.height, channels: 3 } })
-    : sharp(bytes, { limitInputPixels: UPLOAD_LIMITS.maxPixels })
-  const out = await src.resize({ width: THUMB_WIDTH, withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer()
-  return new Uint8Array(out)
-}
+export { IMAGE_KINDS, type ImageKind } from './lib/frame-images'
 
 /** What the person sees when a frame fails: short, about their file, never a stack trace. */
 function failReason(e: unknown) {
@@ -85,18 +58,9 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     })
     const { spec, version } = await specForProduction(db, reel.productionId)
     const a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true })
-    const images: Record<ImageKind, Uint8Array> = {
-      'thumb': await thumbnail(bytes, input, isRaw, reel.matrix),
-      // The overlay is a full picture, the one large image here: zlib level 1 takes two thirds
-      // of level 2's time for a file about a quarter larger.
-      'overlay': await png(renderRangeOverlay(input, spec, { matrix: reel.matrix }), OVERLAY_WIDTH, { opaque: true, compressionLevel: 1 }),
-      'waveform-luma': await png(renderWaveform(a.waveform!, 'luma')),
-      'waveform-flat': await png(renderWaveform(a.waveform!, 'flat')),
-      'waveform-rgb': await png(renderWaveform(a.waveform!, 'rgb')),
-      'vectorscope': await png(renderVectorscope(a.vectorscope!, { matrix: reel.matrix })),
-    }
-    await Promise.all(Object.entries(images).map(([kind, data]) =>
-      storage.put(keys.image(frame.teamId, frame.id, kind), data, kind === 'thumb' && !isRaw ? 'image/jpeg' : 'image/png')))
+    const images = await renderFrameImages(input, a, spec, reel.matrix)
+    await Promise.all(Object.entries(images).map(([kind, img]) =>
+      storage.put(keys.image(frame.teamId, frame.id, kind), img.data, img.contentType)))
     const json = analysisJson(a, spec.name)
     const h = a.histograms
     const histograms = {

@@ -7,6 +7,9 @@ import { createDb } from '../server/db/client'
 import { Storage, storageConfigFromEnv } from '../server/lib/storage'
 import type { AnalyseJob } from '../shared/utils/queues'
 import { processAnalyse, type AnalyseDeps } from './analyse-frame'
+import { configureSharp } from './lib/frame-images'
+
+configureSharp()
 
 let deps: AnalyseDeps | undefined
 
