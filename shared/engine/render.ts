@@ -323,8 +323,15 @@ export interface RangeOverlayOptions {
   withPicture?: boolean
 }
 
+/** R', G', B' bytes, 3 per pixel: what image encoders take without first dropping an alpha channel. */
+export interface RgbImage {
+  width: number
+  height: number
+  data: Uint8ClampedArray
+}
+
 export interface RangeOverlayImage extends RgbaImage {
-  picture?: RgbaImage
+  picture?: RgbImage
 }
 
 const OVERLAY_HIGH = 1
@@ -360,7 +367,7 @@ export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: 
     pixel: new Uint8Array(width),
   }
   const out = new Uint8ClampedArray(outW * outH * 4)
-  const pic = opts.withPicture ? new Uint8ClampedArray(outW * outH * 4) : undefined
+  const pic = opts.withPicture ? new Uint8ClampedArray(outW * outH * 3) : undefined
   const buf = makeRowBuffers(width)
 
   let outRow = 0
@@ -371,7 +378,7 @@ export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: 
     rowsIn++
     // The last frame row of this image row's block.
     if (Math.floor((row + 1) * outH / height) === outRow + 1 || row === height - 1) {
-      flushRow(acc, colCount, rowsIn, out, pic, outRow * outW * 4)
+      flushRow(acc, colCount, rowsIn, out, pic, outRow * outW)
       rowsIn = 0
       outRow++
     }
@@ -460,10 +467,11 @@ function markRow(buf: RowBuffers, width: number, l: OverlayLimits, a: OverlayAcc
   }
 }
 
-function flushRow(a: OverlayAccumulator, colCount: Float64Array, rows: number, out: Uint8ClampedArray, pic: Uint8ClampedArray | undefined, o: number): void {
+/** Writes one image row, starting at pixel `at`, and clears the block row. */
+function flushRow(a: OverlayAccumulator, colCount: Float64Array, rows: number, out: Uint8ClampedArray, pic: Uint8ClampedArray | undefined, at: number): void {
   const { r: sR, g: sG, b: sB, flags } = a
   const hi = PALETTE.overlayHigh; const lo = PALETTE.overlayLow
-  for (let ox = 0; ox < flags.length; ox++, o += 4) {
+  for (let ox = 0, o = at * 4, p = at * 3; ox < flags.length; ox++, o += 4, p += 3) {
     const k = 255 / (colCount[ox]! * rows)
     // Uint8ClampedArray rounds on store.
     const r8 = sR[ox]! * k; const g8 = sG[ox]! * k; const b8 = sB[ox]! * k
@@ -474,7 +482,7 @@ function flushRow(a: OverlayAccumulator, colCount: Float64Array, rows: number, o
       out[o] = mark[0]; out[o + 1] = mark[1]; out[o + 2] = mark[2]
     }
     out[o + 3] = 255
-    if (pic) { pic[o] = r8; pic[o + 1] = g8; pic[o + 2] = b8; pic[o + 3] = 255 }
+    if (pic) { pic[p] = r8; pic[p + 1] = g8; pic[p + 2] = b8 }
   }
   sR.fill(0); sG.fill(0); sB.fill(0); flags.fill(0)
 }

@@ -62,7 +62,9 @@ export async function renderFrameImages(
   // which is all the thumbnail needs, whatever the input kind (8 or 16 bits, raw Y'CbCr).
   const overlay = await step('overlay render', () => renderRangeOverlay(input, spec, { matrix, maxWidth: OVERLAY_WIDTH, withPicture: true }))
   const thumb = await step('thumb (resize+jpeg)', async () => {
-    const out = await rawRgba(overlay.picture!).removeAlpha().resize({ width: THUMB_WIDTH, withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer()
+    const pic = overlay.picture!
+    const out = await sharp(Buffer.from(pic.data.buffer, pic.data.byteOffset, pic.data.byteLength), { raw: { width: pic.width, height: pic.height, channels: 3 } })
+      .resize({ width: THUMB_WIDTH, withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer()
     return { data: new Uint8Array(out.buffer, out.byteOffset, out.length), contentType: 'image/jpeg' } satisfies FrameImage
   })
   const overlayPng = await step('overlay png', () => png(overlay, PNG_LEVEL.overlay))
