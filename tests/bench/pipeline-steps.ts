@@ -1,53 +1,65 @@
-// Where one frame's time goes inside the analyse job, step by step, on one thread:
-// decode, engine, each rendered image, PNG/JPEG encoding. S3 and MariaDB are left out
-// (the pipeline benchmark measures them in place). Run: npx tsx tests/bench/pipeline-steps.ts
+// Where one frame's time goes inside the analyse job, step by step, on one thread: the
+// worker's own code (decodeBytes, analyseFrame, renderFrameImages from workers/lib) with a
+// timer around each step, on the noisy 1080p PNGs the pipeline benchmark uploads. S3 and
+// MariaDB are left out (the pipeline benchmark measures them in place).
+// Run: npx tsx tests/bench/pipeline-steps.ts   (ROUNDS=n for more rounds)
+//
+// CPU time (process.cpuUsage: every thread of the process, so libvips' own threads count)
+// is the figure to compare: on a shared machine wall time mostly measures the neighbours.
+// Not a test: the numbers vary with the machine and its load.
 import sharp from 'sharp'
-import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME, renderRangeOverlay, renderVectorscope, renderWaveform } from '../../shared/engine/index'
-import type { RgbaImage } from '../../shared/engine/types'
+import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine/index'
 import { decodeBytes } from '../../workers/lib/decode-file'
+import { configureSharp, renderFrameImages, type Step } from '../../workers/lib/frame-images'
 import { framePixels, HEIGHT, WIDTH } from './pipeline-frames.mjs'
 
-const ROUNDS = Number(process.env.ROUNDS ?? 5)
-const LEVEL = Number(process.env.PNG_LEVEL ?? 2)
+const ROUNDS = Number(process.env.ROUNDS ?? 7)
 const spec = builtinSpec(DEFAULT_SPEC_NAME)!
-const times = new Map<string, number[]>()
-async function step<T>(name: string, f: () => T | Promise<T>): Promise<T> {
-  const t = performance.now()
+// As each analysis thread of the worker does on start.
+configureSharp()
+
+const times = new Map<string, { wall: number[], cpu: number[] }>()
+const step: Step = async (name, f) => {
+  const cpu0 = process.cpuUsage()
+  const t0 = performance.now()
   const r = await f()
-  times.set(name, [...(times.get(name) ?? []), performance.now() - t])
+  const wall = performance.now() - t0
+  const cpu = process.cpuUsage(cpu0)
+  const m = times.get(name) ?? { wall: [], cpu: [] }
+  m.wall.push(wall)
+  m.cpu.push((cpu.user + cpu.system) / 1000)
+  times.set(name, m)
   return r
 }
-const png = (img: RgbaImage, maxWidth?: number) => {
-  let s = sharp(Buffer.from(img.data.buffer, img.data.byteOffset, img.data.byteLength), { raw: { width: img.width, height: img.height, channels: 4 } })
-  if (maxWidth && img.width > maxWidth) s = s.resize({ width: maxWidth })
-  return s.png({ compressionLevel: LEVEL }).toBuffer()
-}
 
-const sizes = new Map<string, number>()
-for (let i = 0; i < ROUNDS + 1; i++) {
+let sizes: Record<string, number> = {}
+let pngBytes = 0
+// Round 0 warms the JIT and libvips up and is not counted.
+for (let i = 0; i <= ROUNDS; i++) {
+  // Default zlib level, as the pipeline benchmark writes its frames (and a grading app would).
   const bytes = await sharp(framePixels(i), { raw: { width: WIDTH, height: HEIGHT, channels: 3 } }).png().toBuffer()
-  if (i === 0) times.clear()
+  pngBytes = bytes.length
   const input = await step('decode', () => decodeBytes(bytes, { range: 'full' }))
   const a = await step('engine', () => analyseFrame(input, { matrix: '601', spec, keepDensities: true }))
-  const thumb = await step('thumb (decode+resize+jpeg)', () => sharp(bytes).resize({ width: 320 }).jpeg({ quality: 80 }).toBuffer())
-  const ov = await step('overlay render', () => renderRangeOverlay(input, spec, { matrix: '601' }))
-  const ovp = await step('overlay png', () => png(ov, 1280))
-  const imgs: Record<string, RgbaImage> = {}
-  for (const m of ['luma', 'flat', 'rgb'] as const) imgs[`waveform-${m}`] = await step(`waveform-${m} render`, () => renderWaveform(a.waveform!, m))
-  imgs.vectorscope = await step('vectorscope render', () => renderVectorscope(a.vectorscope!, { matrix: '601' }))
-  const outs: Record<string, Buffer> = { thumb, overlay: ovp }
-  for (const [k, img] of Object.entries(imgs)) outs[k] = await step(`${k} png`, () => png(img))
-  if (i === 1) {
-    for (const [k, b] of Object.entries(outs)) sizes.set(k, b.length)
-    sizes.set('(waveform size)', imgs['waveform-luma']!.width * 10000 + imgs['waveform-luma']!.height)
-  }
+  const images = await renderFrameImages(input, a, spec, '601', step)
+  if (i === ROUNDS) sizes = Object.fromEntries(Object.entries(images).map(([k, v]) => [k, v.data.length]))
+  if (i === 0) times.clear()
 }
-let total = 0
-console.log(`1080p frame, ${ROUNDS} rounds, PNG level ${LEVEL}, median ms:`)
+
+const median = (v: number[]) => [...v].sort((a, b) => a - b)[v.length >> 1]!
+console.log(`${WIDTH}×${HEIGHT} noisy PNG (${(pngBytes / 1e6).toFixed(1)} MB), ${ROUNDS} rounds, median ms per step:`)
+console.log(`  ${'step'.padEnd(28)} ${'wall'.padStart(7)} ${'CPU'.padStart(7)}`)
+let wall = 0
+let cpu = 0
+let cpuOutsideEngine = 0
 for (const [k, v] of times) {
-  const m = v.sort((a, b) => a - b)[v.length >> 1]!
-  total += m
-  console.log(`  ${k.padEnd(28)} ${m.toFixed(1).padStart(7)}`)
+  const w = median(v.wall)
+  const c = median(v.cpu)
+  wall += w
+  cpu += c
+  if (k !== 'engine') cpuOutsideEngine += c
+  console.log(`  ${k.padEnd(28)} ${w.toFixed(1).padStart(7)} ${c.toFixed(1).padStart(7)}`)
 }
-console.log(`  ${'total'.padEnd(28)} ${total.toFixed(1).padStart(7)}`)
-console.log('output bytes:', Object.fromEntries(sizes))
+console.log(`  ${'total'.padEnd(28)} ${wall.toFixed(1).padStart(7)} ${cpu.toFixed(1).padStart(7)}`)
+console.log(`  ${'CPU outside the engine'.padEnd(28)} ${''.padStart(7)} ${cpuOutsideEngine.toFixed(1).padStart(7)}`)
+console.log('output bytes:', sizes)
