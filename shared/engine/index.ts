@@ -17,4 +17,4 @@ export { linePlot, sampleToMicroseconds, SAMPLE_RATE_MHZ, SD_ACTIVE_SAMPLES } fr
 export { waveformGeometry, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP, WAVEFORM_ROWS } from './waveform'
 export { vectorscopeCell, VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 export { PALETTE, renderHistogram, renderRangeOverlay, renderVectorscope, renderWaveform } from './render'
-export type { RangeOverlayImage, RangeOverlayOptions, RgbImage, WaveformMode } from './render'
+export type { OverlayMask, RangeOverlayImage, RangeOverlayOptions, RgbImage, WaveformMode } from './render'

@@ -321,6 +321,18 @@ export interface RangeOverlayOptions {
   maxWidth?: number
   /** Also return the same picture without marks (e.g. to make a thumbnail from). */
   withPicture?: boolean
+  /**
+   * Marks already gathered for exactly this image's blocks (by the analysis pass, say): bit 1
+   * where a block holds a pixel above a max limit, bit 2 below a min limit. Used as given, so
+   * the frame is read for the picture only.
+   */
+  mask?: OverlayMask
+}
+
+export interface OverlayMask {
+  width: number
+  height: number
+  data: Uint8Array
 }
 
 /** R', G', B' bytes, 3 per pixel: what image encoders take without first dropping an alpha channel. */
@@ -344,8 +356,9 @@ const OVERLAY_LOW = 2
  *
  * Drawn smaller than the frame, each image pixel stands for a block of frame pixels: the
  * picture is the block's average, and the block is painted if ANY of its pixels is beyond a
- * limit, so a lone hot pixel is never averaged away. Every frame pixel is tested, through the
- * engine's own row decoding and the spec's limits, so the marks agree with the verdict.
+ * limit, so a lone hot pixel is never averaged away. Without a mask every frame pixel is
+ * tested, through the engine's own row decoding and the spec's limits, so the marks agree with
+ * the verdict.
  */
 export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: RangeOverlayOptions = {}): RangeOverlayImage {
   const matrix = resolveMatrix(opts.matrix)
@@ -355,6 +368,10 @@ export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: 
   const outW = Math.min(width, maxWidth)
   const outH = outW === width ? height : Math.max(1, Math.round(height * outW / width))
   if (outW * outH > 64e6) throw new EngineInputError('frame too large for an overlay')
+  const mask = opts.mask
+  if (mask && (mask.width !== outW || mask.height !== outH || mask.data.length < outW * outH)) {
+    throw new EngineInputError(`the range mask is ${mask.width}×${mask.height}, the overlay ${outW}×${outH}`)
+  }
 
   const lim = overlayLimits(spec, matrix)
   // Block edges: frame column x belongs to image column ⌊x·outW/width⌋, likewise for rows,
@@ -364,7 +381,6 @@ export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: 
   for (let x = 0; x < width; x++) { const c = Math.floor(x * outW / width); colOf[x] = c; colCount[c] = colCount[c]! + 1 }
   const acc: OverlayAccumulator = {
     r: new Float64Array(outW), g: new Float64Array(outW), b: new Float64Array(outW), flags: new Uint8Array(outW), colOf,
-    pixel: new Uint8Array(width),
   }
   const out = new Uint8ClampedArray(outW * outH * 4)
   const pic = opts.withPicture ? new Uint8ClampedArray(outW * outH * 3) : undefined
@@ -374,10 +390,12 @@ export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: 
   let rowsIn = 0
   for (let row = 0; row < height; row++) {
     src.readRow(row, buf)
-    markRow(buf, width, lim, acc)
+    if (mask) sumRow(buf, width, acc)
+    else markRow(buf, width, lim, acc)
     rowsIn++
     // The last frame row of this image row's block.
     if (Math.floor((row + 1) * outH / height) === outRow + 1 || row === height - 1) {
+      if (mask) acc.flags.set(mask.data.subarray(outRow * outW, (outRow + 1) * outW))
       flushRow(acc, colCount, rowsIn, out, pic, outRow * outW)
       rowsIn = 0
       outRow++
@@ -426,14 +444,12 @@ const limited = (hi: number, lo: number) => hi !== Infinity || lo !== -Infinity
 /** Per image column of the block row being gathered: sums of the clipped picture and the OR of the marks. */
 interface OverlayAccumulator {
   r: Float64Array, g: Float64Array, b: Float64Array, flags: Uint8Array, colOf: Int32Array
-  /** Marks of the frame row at hand, one per frame pixel. */
-  pixel: Uint8Array
 }
 
 /**
- * Marks one frame row and adds it to its block row. One short loop per quantity the spec
- * limits (most specs limit two or three): a single loop testing all five quantities against
- * mostly-infinite thresholds cost more than the row decoding itself.
+ * Marks one frame row and adds it to its block row. Quantities the spec does not limit are
+ * not computed: a test of all five against infinite thresholds cost as much again as the
+ * row decoding.
  */
 function markRow(buf: RowBuffers, width: number, l: OverlayLimits, a: OverlayAccumulator): void {
   const { y: Y, pb: PB, pr: PR, r: R, g: G, b: B } = buf
@@ -461,6 +477,19 @@ function markRow(buf: RowBuffers, width: number, l: OverlayLimits, a: OverlayAcc
     if (hi) flags[ox] = flags[ox]! | OVERLAY_HIGH
     else if (lo) flags[ox] = flags[ox]! | OVERLAY_LOW
     // Clipped per pixel before averaging: the picture is what a display would show.
+    sR[ox] = sR[ox]! + (r < 0 ? 0 : r > 1 ? 1 : r)
+    sG[ox] = sG[ox]! + (g < 0 ? 0 : g > 1 ? 1 : g)
+    sB[ox] = sB[ox]! + (b < 0 ? 0 : b > 1 ? 1 : b)
+  }
+}
+
+/** Adds one frame row to its block row's picture, for marks that came with a mask. */
+function sumRow(buf: RowBuffers, width: number, a: OverlayAccumulator): void {
+  const { r: R, g: G, b: B } = buf
+  const { r: sR, g: sG, b: sB, colOf } = a
+  for (let x = 0; x < width; x++) {
+    const ox = colOf[x]!
+    const r = R[x]!; const g = G[x]!; const b = B[x]!
     sR[ox] = sR[ox]! + (r < 0 ? 0 : r > 1 ? 1 : r)
     sG[ox] = sG[ox]! + (g < 0 ? 0 : g > 1 ? 1 : g)
     sB[ox] = sB[ox]! + (b < 0 ? 0 : b > 1 ? 1 : b)

@@ -140,6 +140,30 @@ describe('range overlay and histogram images', () => {
     expect(pic(4, 719)).toEqual([64, 64, 64])
   })
 
+  it('takes the marks from a mask when one is given, and reads the frame for the picture only', () => {
+    const W = 1920; const H = 1080
+    const frame = solidRgb8(126, 126, 126, W, H, 'studio')
+    ;(frame as Extract<FrameInput, { kind: 'rgb' }>).data.fill(250, (532 * W + 1000) * 3, (532 * W + 1000) * 3 + 3)
+    ;(frame as Extract<FrameInput, { kind: 'rgb' }>).data.fill(8, (1079 * W + 7) * 3, (1079 * W + 7) * 3 + 3)
+    const spec = builtinSpec('digital-studio')!
+    const own = renderRangeOverlay(frame, spec, { maxWidth: 1280 })
+    // A mask of exactly the blocks the overlay marked itself (computed) gives the same image.
+    const same = new Uint8Array(1280 * 720)
+    for (let i = 0; i < same.length; i++) {
+      const c = [own.data[i * 4], own.data[i * 4 + 1], own.data[i * 4 + 2]]
+      same[i] = c.every((v, k) => v === PALETTE.overlayHigh[k]) ? 1 : c.every((v, k) => v === PALETTE.overlayLow[k]) ? 2 : 0
+    }
+    expect(same.reduce((n, v) => n + (v ? 1 : 0), 0)).toBe(2)
+    expect(firstDiff(renderRangeOverlay(frame, spec, { maxWidth: 1280, mask: { width: 1280, height: 720, data: same } }), own)).toBe(-1)
+    // The mask is used as given: its block is marked, the hot pixel's block is not.
+    const other = new Uint8Array(1280 * 720)
+    other[10 * 1280 + 20] = 2
+    const img = renderRangeOverlay(frame, spec, { maxWidth: 1280, mask: { width: 1280, height: 720, data: other } })
+    expect(px(img, 20, 10)).toEqual([...PALETTE.overlayLow, 255])
+    expect(px(img, 666, 354)).toEqual([160, 160, 160, 255])
+    expect(() => renderRangeOverlay(frame, spec, { maxWidth: 1280, mask: { width: 1280, height: 719, data: other } })).toThrow(/1280×719/)
+  })
+
   it('averages the picture over each block and keeps the full size when the frame is narrow enough', () => {
     // Full-range grey codes 100 and 201 side by side: the 2×2 blocks average to 150.5 → 150 (round half to even, as a Uint8ClampedArray stores).
     const frame = solidRgb8(0, 0, 0, 4, 2)
