@@ -4,6 +4,7 @@ import { LEVEL_MIN, LEVEL_STEP } from './levels'
 import { ireToCode8 } from './scales'
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 import type { LevelDistributions } from './types'
+import type { MaskLimits } from './mask'
 
 /** Composite limits behind shares.compositeOut: −20…+120 IRE (REFERENCE.md §6, NTSC practice). */
 export const COMPOSITE_OUT_LOW_IRE = -20
@@ -53,6 +54,11 @@ export interface Densities {
   g: Uint32Array
   b: Uint32Array
   vector: Uint32Array
+  /** The range mask (mask.ts), its column of each frame column, offset of each frame row's mask row, and limits. */
+  mask: Uint8Array
+  maskCol: Int32Array
+  maskRow: Int32Array
+  lim: MaskLimits
 }
 
 export interface Coef { uK: number, vK: number, rK: number, bK: number, gR: number, gB: number, cbOff: number, hs: number, gamHi: number, gamLo: number }

@@ -11,6 +11,7 @@ import { evaluateSpec } from './verdict'
 import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP, percentile, shareAbove, shareBelow } from './levels'
 import { waveformGeometry, waveformRowOffsets, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP, WAVEFORM_ROWS } from './waveform'
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
+import { MASK_HIGH, MASK_LOW, maskGeometry, maskLimits } from './mask'
 import type { AnalyseOptions, FrameAnalysis, FrameInput, Histograms, LevelDistributions, MatrixName } from './types'
 
 export { COMPOSITE_OUT_HIGH_IRE, COMPOSITE_OUT_LOW_IRE } from './accumulate'
@@ -73,11 +74,17 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
     const colOf = new Int32Array(width)
     for (let x = 0; x < width; x++) colOf[x] = Math.floor(x / decimation)
     const size = columns * WAVEFORM_ROWS
+    const mg = maskGeometry(width, height, opts.maskWidth)
+    const maskCol = new Int32Array(width)
+    for (let x = 0; x < width; x++) maskCol[x] = Math.floor(x * mg.width / width)
+    const maskRow = new Int32Array(height)
+    for (let y = 0; y < height; y++) maskRow[y] = Math.floor(y * mg.height / height) * mg.width
     dens = {
       columns, decimation, colOf, rowOff: waveformRowOffsets(columns),
       luma: new Uint32Array(size), flat: new Uint32Array(size),
       r: new Uint32Array(size), g: new Uint32Array(size), b: new Uint32Array(size),
       vector: new Uint32Array(VECTORSCOPE_SIZE * VECTORSCOPE_SIZE),
+      mask: new Uint8Array(mg.width * mg.height), maskCol, maskRow, lim: maskLimits(spec, bins, COARSE_PAD * hs),
     }
   }
 
@@ -169,6 +176,7 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
       decimation: dens.decimation, luma: dens.luma, flat: dens.flat, rgb: { r: dens.r, g: dens.g, b: dens.b },
     }
     out.vectorscope = { size: VECTORSCOPE_SIZE, extent: VECTORSCOPE_EXTENT, data: dens.vector }
+    out.rangeMask = { width: dens.maskCol[width - 1]! + 1, height: dens.mask.length / (dens.maskCol[width - 1]! + 1), data: dens.mask }
   }
   return out
 }
@@ -186,7 +194,7 @@ function referencePass(
       const x1 = Math.min(width, x0 + DENSITY_STRIPE)
       for (let row = 0; row < height; row++) {
         src.readYcc(row, yRow, pbRow, prRow, x0, x1)
-        rowPassWithDensities(yRow, pbRow, prRow, x0, x1 - x0, src.chromaShift, coef, cbHist, crHist, levels, t, dens)
+        rowPassWithDensities(yRow, pbRow, prRow, x0, x1 - x0, row, src.chromaShift, coef, cbHist, crHist, levels, t, dens)
       }
     }
   }
@@ -281,13 +289,16 @@ function rowPass(
 }
 
 function rowPassWithDensities(
-  Y: Float64Array, PB: Float64Array, PR: Float64Array, x0: number, width: number, shift: number, k: Coef,
+  Y: Float64Array, PB: Float64Array, PR: Float64Array, x0: number, width: number, row: number, shift: number, k: Coef,
   cbHist: Uint32Array, crHist: Uint32Array, lv: LevelDistributions, t: Totals, d: Densities,
 ): void {
   const { uK, vK, rK, bK, gR, gB, cbOff, hs, gamHi, gamLo } = k
   const dl = lv.luma; const dhi = lv.compMax; const dlo = lv.compMin; const dmx = lv.rgbMax; const dmn = lv.rgbMin
   const dr = lv.r; const dg = lv.g; const db = lv.b
-  const { colOf, rowOff, luma: wl, flat: wf, r: wr, g: wg, b: wb, vector } = d
+  const { colOf, rowOff, luma: wl, flat: wf, r: wr, g: wg, b: wb, vector, mask, maskCol } = d
+  const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo } = d.lim
+  const mRow = d.maskRow[row]!
+  let cbi = 0; let cri = 0
   // Module constants as locals: an imported binding is a cell load with a hole check on
   // every use, which V8 would otherwise repeat per pixel in the loop below.
   const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
@@ -309,8 +320,10 @@ function rowPassWithDensities(
       const cr = 128 + 224 * pr
       cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
       crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
-      cbHist[(cb * hs + cbOff) | 0]! += cnt
-      crHist[(cr * hs + cbOff) | 0]! += cnt
+      cbi = (cb * hs + cbOff) | 0
+      cri = (cr * hs + cbOff) | 0
+      cbHist[cbi]! += cnt
+      crHist[cri]! += cnt
       const u = uK * pb; const v = vK * pr
       c = 219 * Math.sqrt(u * u + v * v)
       cMax = Math.max(cMax, c)
@@ -340,11 +353,15 @@ function rowPassWithDensities(
     dl[iy]!++
     dhi[ihi]!++
     dlo[ilo]!++
-    dmx[(mx * lvScale + lvOff) | 0]!++
-    dmn[(mn * lvScale + lvOff) | 0]!++
+    const imx = (mx * lvScale + lvOff) | 0
+    const imn = (mn * lvScale + lvOff) | 0
+    dmx[imx]!++
+    dmn[imn]!++
     dr[ir]!++
     dg[ig]!++
     db[ib]!++
+    mask[mRow + maskCol[x0 + x]!]! |= (+(iy >= yHi) | +(ihi >= cHi) | +(imx >= rgbHi) | +(cbi >= cbHi) | +(cri >= crHi)) * MASK_HIGH
+      | (+(iy <= yLo) | +(ilo <= cLo) | +(imn <= rgbLo) | +(cbi <= cbLo) | +(cri <= crLo)) * MASK_LOW
     wl[rowOff[iy]! + col]!++
     wf[rowOff[ihi]! + col]!++
     wf[rowOff[ilo]! + col]!++

@@ -24,6 +24,8 @@ import { v210Stride } from './decode'
 import { MATRICES } from './matrix'
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 import type { FrameInput, MatrixName } from './types'
+import { MASK_HIGH, MASK_LOW } from './mask'
+import type { MaskLimits } from './mask'
 
 const LITTLE_ENDIAN = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1
 
@@ -34,6 +36,7 @@ class Kernel {
   readonly cbH: Uint32Array; readonly crH: Uint32Array
   readonly wl: Uint32Array; readonly wf: Uint32Array; readonly wr: Uint32Array; readonly wg: Uint32Array; readonly wb: Uint32Array
   readonly vec: Uint32Array; readonly rowOff: Int32Array; readonly colOf: Int32Array
+  readonly mask: Uint8Array; readonly maskCol: Int32Array; readonly maskRow: Int32Array; readonly lim: MaskLimits
   readonly uK: number; readonly vK: number; readonly rK: number; readonly bK: number; readonly gR: number; readonly gB: number
   readonly cbOff: number; readonly hs: number; readonly gamHi: number; readonly gamLo: number
   sumY = 0; yMin: number; yMax: number; cbMin: number; cbMax: number; crMin: number; crMax: number
@@ -51,6 +54,8 @@ class Kernel {
     this.wr = dens?.r ?? none; this.wg = dens?.g ?? none; this.wb = dens?.b ?? none
     this.vec = dens?.vector ?? none
     this.rowOff = dens?.rowOff ?? new Int32Array(0); this.colOf = dens?.colOf ?? new Int32Array(0)
+    this.mask = dens?.mask ?? new Uint8Array(0); this.maskCol = dens?.maskCol ?? new Int32Array(0); this.maskRow = dens?.maskRow ?? new Int32Array(0)
+    this.lim = dens?.lim ?? { yHi: 0, yLo: 0, cHi: 0, cLo: 0, rgbHi: 0, rgbLo: 0, cbHi: 0, cbLo: 0, crHi: 0, crLo: 0 }
     this.uK = k.uK; this.vK = k.vK; this.rK = k.rK; this.bK = k.bK; this.gR = k.gR; this.gB = k.gB
     this.cbOff = k.cbOff; this.hs = k.hs; this.gamHi = k.gamHi; this.gamLo = k.gamLo
     this.yMin = t.yMin; this.yMax = t.yMax; this.cbMin = t.cbMin; this.cbMax = t.cbMax; this.crMin = t.crMin; this.crMax = t.crMax
@@ -105,6 +110,12 @@ function min3(a: number, b: number, c: number): number {
   return c + (d & (d >> 31))
 }
 
+/** Marks mask column `mc` on the rows rowEnd − n … rowEnd − 1 (a run that ended before rowEnd). */
+function markRun(k: Kernel, mc: number, rowEnd: number, n: number, mark: number): void {
+  const { mask, maskRow } = k
+  for (let r = rowEnd - n; r < rowEnd; r++) mask[maskRow[r]! + mc]! |= mark
+}
+
 /** The queue of ended runs: column, the unit's codes, and the run length. */
 class Queue {
   len = 0
@@ -125,8 +136,10 @@ class Queue {
  * reference's arithmetic: the read of decode.ts, then its rowPass, with the per-channel
  * levels counted per code (RgbTables).
  */
-function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, kr: number, kb: number, cbDiv: number, crDiv: number, rowC: Int32Array): void {
-  const { uK, vK, cbOff, hs, wave, rowOff, colOf } = k
+function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, kr: number, kb: number, cbDiv: number, crDiv: number, rowC: Int32Array, rowEnd: number): void {
+  const { uK, vK, cbOff, hs, wave, rowOff, colOf, maskCol } = k
+  const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo } = k.lim
+  const bin = tb.bin
   const { dl, dhi, dlo, cbH, crH, wl, wf, wr, wg, wb, vec } = k
   const { S, out: gOut, cR, cG, cB, cMx, cMn } = tb
   // Module constants as locals: an imported binding is a cell load with a hole check on
@@ -151,8 +164,10 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, kr: number, kb: number, cb
     const cr = 128 + 224 * pr
     cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
     crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
-    cbH[(cb * hs + cbOff) | 0]! += n
-    crH[(cr * hs + cbOff) | 0]! += n
+    const cbi = (cb * hs + cbOff) | 0
+    const cri = (cr * hs + cbOff) | 0
+    cbH[cbi]! += n
+    crH[cri]! += n
     const u = uK * pb; const v = vK * pr
     const c = 219 * Math.sqrt(u * u + v * v)
     cMax = Math.max(cMax, c)
@@ -169,8 +184,9 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, kr: number, kb: number, cb
     cR[R]! += n
     cG[G]! += n
     cB[B]! += n
-    cMx[max3(R, G, B)]! += n
-    cMn[min3(R, G, B)]! += n
+    const mxc = max3(R, G, B); const mnc = min3(R, G, B)
+    cMx[mxc]! += n
+    cMn[mnc]! += n
     compOut += (+(hi > compHi) | +(lo < compLo)) * n
     gamOut += (gOut[R]! | gOut[G]! | gOut[B]!) * n
     studOut += (+(cb < lowBand) | +(cb >= highChroma) | +(cr < lowBand) | +(cr >= highChroma) | +(y < lowBand) | +(y >= highLuma)) * n
@@ -180,7 +196,11 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, kr: number, kb: number, cb
       vc = vc < 0 ? 0 : vc > vsLast ? vsLast : vc
       vr = vr < 0 ? 0 : vr > vsLast ? vsLast : vr
       vec[vr * vsSize + vc]! += n
-      const col = colOf[QX[e]!]!
+      const x = QX[e]!
+      const mark = (+(iy >= yHi) | +(ihi >= cHi) | +(bin[mxc]! >= rgbHi) | +(cbi >= cbHi) | +(cri >= crHi)) * MASK_HIGH
+        | (+(iy <= yLo) | +(ilo <= cLo) | +(bin[mnc]! <= rgbLo) | +(cbi <= cbLo) | +(cri <= crLo)) * MASK_LOW
+      if (mark) markRun(k, maskCol[x]!, rowEnd, n, mark)
+      const col = colOf[x]!
       wl[rowOff[iy]! + col]! += n
       wf[rowOff[ihi]! + col]! += n
       wf[rowOff[ilo]! + col]! += n
@@ -320,8 +340,10 @@ function binShift(off: number, eps: number): number {
  * code), B'−Y' (per Cb code) and G'−Y' (from both). A pair with any offset near an edge is
  * set aside and measured by pairFloat, the float route, after the batch.
  */
-function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
-  const { gamHi, gamLo, wave, rowOff, colOf } = k
+function pairBatch(k: Kernel, q: Queue, tb: PairTables, rowEnd: number): void {
+  const { gamHi, gamLo, wave, rowOff, colOf, maskCol } = k
+  const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo } = k.lim
+  const { cbIdx, crIdx } = tb
   const { dhi, dlo, dmx, dmn, dr, dg, db, wl, wf, wr, wg, wb, vec } = k
   const { yCnt, cbCnt, crCnt, yv, yBin, yOut, u: uT, bo: boT, gb: gbT, cbOut, vcT, v: vT, ro: roT, gr: grT, crOut, vrT } = tb
   const { qr: qrT, okR, qb: qbT, okB } = tb
@@ -380,6 +402,13 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
     studOut += (cOut | yOut[y0c]!) * n + (cOut | yOut[y1c]!) * n
     if (wave) {
       const x = QX[e]!
+      const ch = +(cbIdx[cbc]! >= cbHi) | +(crIdx[crc]! >= crHi); const cl = +(cbIdx[cbc]! <= cbLo) | +(crIdx[crc]! <= crLo)
+      const m0 = (ch | +(K0 >= yHi) | +(K0 + qhi >= cHi) | +(K0 + qmx >= rgbHi)) * MASK_HIGH | (cl | +(K0 <= yLo) | +(K0 - qhi <= cLo) | +(K0 + qmn <= rgbLo)) * MASK_LOW
+      const m1 = (ch | +(K1 >= yHi) | +(K1 + qhi >= cHi) | +(K1 + qmx >= rgbHi)) * MASK_HIGH | (cl | +(K1 <= yLo) | +(K1 - qhi <= cLo) | +(K1 + qmn <= rgbLo)) * MASK_LOW
+      if (m0 | m1) {
+        markRun(k, maskCol[x]!, rowEnd, n, m0)
+        markRun(k, maskCol[x + 1]!, rowEnd, n, m1)
+      }
       const c0 = colOf[x]!; const c1 = colOf[x + 1]!
       wl[rowOff[K0]! + c0]! += n; wl[rowOff[K1]! + c1]! += n
       wf[rowOff[K0 + qhi]! + c0]! += n; wf[rowOff[K1 + qhi]! + c1]! += n
@@ -391,13 +420,15 @@ function pairBatch(k: Kernel, q: Queue, tb: PairTables): void {
   }
   k.compMin = compMin; k.compMax = compMax; k.cMax = cMax
   k.compOut += compOut; k.gamOut += gamOut; k.studOut += studOut
-  if (nSlow) pairFloat(k, q, tb, nSlow)
+  if (nSlow) pairFloat(k, q, tb, nSlow, rowEnd)
   q.len = 0
 }
 
 /** The pairs pairBatch set aside, measured by the float route: every level binned from its value. */
-function pairFloat(k: Kernel, q: Queue, tb: PairTables, nSlow: number): void {
-  const { gamHi, gamLo, wave, rowOff, colOf } = k
+function pairFloat(k: Kernel, q: Queue, tb: PairTables, nSlow: number, rowEnd: number): void {
+  const { gamHi, gamLo, wave, rowOff, colOf, maskCol } = k
+  const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo } = k.lim
+  const { cbIdx, crIdx } = tb
   const { dhi, dlo, dmx, dmn, dr, dg, db, wl, wf, wr, wg, wb, vec } = k
   const { yCnt, cbCnt, crCnt, yv, yBin, yOut, u: uT, bo: boT, gb: gbT, cbOut, vcT, v: vT, ro: roT, gr: grT, crOut, vrT, slow } = tb
   const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
@@ -430,8 +461,9 @@ function pairFloat(k: Kernel, q: Queue, tb: PairTables, nSlow: number): void {
       const ib = (yb * lvScale + lvOff) | 0
       dhi[ihi]! += n
       dlo[ilo]! += n
-      dmx[max3(ir, ig, ib)]! += n
-      dmn[min3(ir, ig, ib)]! += n
+      const imx = max3(ir, ig, ib); const imn = min3(ir, ig, ib)
+      dmx[imx]! += n
+      dmn[imn]! += n
       dr[ir]! += n
       dg[ig]! += n
       db[ib]! += n
@@ -439,6 +471,10 @@ function pairFloat(k: Kernel, q: Queue, tb: PairTables, nSlow: number): void {
       gamOut += (+(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)) * n
       studOut += (cOut | yOut[yc]!) * n
       if (wave) {
+        const iy = yBin[yc]!; const cbi = cbIdx[cbc]!; const cri = crIdx[crc]!
+        const mark = (+(iy >= yHi) | +(ihi >= cHi) | +(imx >= rgbHi) | +(cbi >= cbHi) | +(cri >= crHi)) * MASK_HIGH
+          | (+(iy <= yLo) | +(ilo <= cLo) | +(imn <= rgbLo) | +(cbi <= cbLo) | +(cri <= crLo)) * MASK_LOW
+        if (mark) markRun(k, maskCol[QX[e]! + h]!, rowEnd, n, mark)
         const col = colOf[QX[e]! + h]!
         wl[rowOff[yBin[yc]!]! + col]! += n
         wf[rowOff[ihi]! + col]! += n
@@ -509,7 +545,9 @@ const rgbTableCache = new Map<string, RgbTables>()
  */
 function rgbRows(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: number, x0: number, n: number, r0: number, r1: number,
   keys: Int32Array, kr: number, kb: number, cbDiv: number, crDiv: number, rowC: Int32Array): number {
-  const { uK, vK, cbOff, hs, wave, rowOff, colOf } = k
+  const { uK, vK, cbOff, hs, wave, rowOff, colOf, mask, maskCol, maskRow } = k
+  const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo } = k.lim
+  const bin = tb.bin
   const { dl, dhi, dlo, cbH, crH, wl, wf, wr, wg, wb, vec } = k
   const { S, out: gOut, cR, cG, cB, cMx, cMn } = tb
   // Module constants as locals: an imported binding is a cell load with a hole check on
@@ -523,6 +561,7 @@ function rgbRows(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: 
   let compOut = 0; let gamOut = 0; let studOut = 0; let reps = 0
   for (let row = r0; row < r1; row++) {
     let i = (row * width + x0) * ch
+    const mRow = wave ? maskRow[row]! : 0
     for (let p = 0; p < n; p++, i += ch) {
       const R = data[i]!; const G = data[i + 1]!; const B = data[i + 2]!
       const key = R | (G << 8) | (B << 16)
@@ -537,8 +576,10 @@ function rgbRows(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: 
       const cr = 128 + 224 * pr
       cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
       crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
-      cbH[(cb * hs + cbOff) | 0]!++
-      crH[(cr * hs + cbOff) | 0]!++
+      const cbi = (cb * hs + cbOff) | 0
+      const cri = (cr * hs + cbOff) | 0
+      cbH[cbi]!++
+      crH[cri]!++
       const u = uK * pb; const v = vK * pr
       const c = 219 * Math.sqrt(u * u + v * v)
       cMax = Math.max(cMax, c)
@@ -555,8 +596,9 @@ function rgbRows(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: 
       cR[R]!++
       cG[G]!++
       cB[B]!++
-      cMx[max3(R, G, B)]!++
-      cMn[min3(R, G, B)]!++
+      const mxc = max3(R, G, B); const mnc = min3(R, G, B)
+      cMx[mxc]!++
+      cMn[mnc]!++
       compOut += +(hi > compHi) | +(lo < compLo)
       gamOut += gOut[R]! | gOut[G]! | gOut[B]!
       studOut += +(cb < lowBand) | +(cb >= highChroma) | +(cr < lowBand) | +(cr >= highChroma) | +(y < lowBand) | +(y >= highLuma)
@@ -566,6 +608,8 @@ function rgbRows(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: 
         vc = vc < 0 ? 0 : vc > vsLast ? vsLast : vc
         vr = vr < 0 ? 0 : vr > vsLast ? vsLast : vr
         vec[vr * vsSize + vc]!++
+        mask[mRow + maskCol[x0 + p]!]! |= (+(iy >= yHi) | +(ihi >= cHi) | +(bin[mxc]! >= rgbHi) | +(cbi >= cbHi) | +(cri >= crHi)) * MASK_HIGH
+          | (+(iy <= yLo) | +(ilo <= cLo) | +(bin[mnc]! <= rgbLo) | +(cbi <= cbLo) | +(cri <= crLo)) * MASK_LOW
         const col = colOf[x0 + p]!
         wl[rowOff[iy]! + col]!++
         wf[rowOff[ihi]! + col]!++
@@ -636,7 +680,7 @@ function rgb8(data: Uint8Array, width: number, height: number, ch: number, full:
         runs[p] = 1
       }
       q.len = m
-      if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC)
+      if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC, row)
       row++
       // Grain: when most runs end after a row or two, per-pixel measurement is cheaper.
       busy = 2 * m > n ? busy + 1 : 0
@@ -644,7 +688,7 @@ function rgb8(data: Uint8Array, width: number, height: number, ch: number, full:
         m = 0
         for (let p = 0; p < n; p++) if (runs[p]) m = queueRun(m, p, x0)
         q.len = m
-        if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC)
+        if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC, row)
         direct = true
       }
     }
@@ -653,7 +697,7 @@ function rgb8(data: Uint8Array, width: number, height: number, ch: number, full:
       let m = 0
       for (let p = 0; p < n; p++) if (runs[p]) m = queueRun(m, p, x0)
       q.len = m
-      if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC)
+      if (m) rgbBatch(k, q, tb, kr, kb, cbDiv, crDiv, rowC, height)
     }
   }
   tb.finish(k)
@@ -697,7 +741,7 @@ function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe
         }
       }
       q.len = m
-      if (m) pairBatch(k, q, tb)
+      if (m) pairBatch(k, q, tb, row)
     }
   }
   return tb
@@ -748,7 +792,7 @@ function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe
         }
       }
       q.len = m
-      if (m) pairBatch(k, q, tb)
+      if (m) pairBatch(k, q, tb, row)
     }
   }
   return tb

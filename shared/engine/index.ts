@@ -1,7 +1,7 @@
 // Linewise measurement engine: plain TypeScript shared by the worker, the server and the browser.
 
 /** Bumped whenever a measured number could change; recorded beside every stored analysis. */
-export const ENGINE_VERSION = '1.0.0'
+export const ENGINE_VERSION = '1.1.0'
 
 export * from './types'
 export * from './matrix'
@@ -16,5 +16,6 @@ export type { SpecEvaluation } from './verdict'
 export { linePlot, sampleToMicroseconds, SAMPLE_RATE_MHZ, SD_ACTIVE_SAMPLES } from './line'
 export { waveformGeometry, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP, WAVEFORM_ROWS } from './waveform'
 export { vectorscopeCell, VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
-export { PALETTE, renderHistogram, renderRangeOverlay, renderVectorscope, renderWaveform } from './render'
+export { MASK_DEFAULT_WIDTH, MASK_HIGH, MASK_LOW, maskGeometry } from './mask'
+export { overlayGeometry, PALETTE, renderHistogram, renderRangeOverlay, renderVectorscope, renderWaveform } from './render'
 export type { OverlayMask, RangeOverlayImage, RangeOverlayOptions, RgbImage, WaveformMode } from './render'

@@ -25,9 +25,19 @@ export function percentile(dist: Uint32Array, n: number, p: number, min = LEVEL_
   return min + (dist.length - 1) * step
 }
 
+/** The first bin whose centre lies above `threshold` (0 if every bin's does). */
+export function firstBinAbove(min: number, step: number, threshold: number): number {
+  return Math.max(0, Math.floor((threshold - min) / step + 1e-9) + 1)
+}
+
+/** The last bin whose centre lies below `threshold` (capped at `bins` − 1; −1 if none). */
+export function lastBinBelow(min: number, step: number, threshold: number, bins: number): number {
+  return Math.min(bins - 1, Math.ceil((threshold - min) / step - 1e-9) - 1)
+}
+
 /** Share of samples whose bin centre lies above `threshold`. */
 export function shareAbove(dist: Uint32Array, min: number, step: number, threshold: number, n: number): number {
-  const first = Math.max(0, Math.floor((threshold - min) / step + 1e-9) + 1)
+  const first = firstBinAbove(min, step, threshold)
   let s = 0
   for (let i = first; i < dist.length; i++) s += dist[i]!
   return s / n
@@ -35,7 +45,7 @@ export function shareAbove(dist: Uint32Array, min: number, step: number, thresho
 
 /** Share of samples whose bin centre lies below `threshold`. */
 export function shareBelow(dist: Uint32Array, min: number, step: number, threshold: number, n: number): number {
-  const last = Math.min(dist.length - 1, Math.ceil((threshold - min) / step - 1e-9) - 1)
+  const last = lastBinBelow(min, step, threshold, dist.length)
   let s = 0
   for (let i = 0; i <= last; i++) s += dist[i]!
   return s / n

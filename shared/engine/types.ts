@@ -46,6 +46,18 @@ export interface AnalyseOptions {
   matrix?: MatrixName
   spec?: DeliverySpec
   keepDensities?: boolean
+  /** Width of the range mask made with the densities (default MASK_DEFAULT_WIDTH, never wider than the frame). */
+  maskWidth?: number
+}
+
+/**
+ * Blocks of the picture holding a pixel beyond the spec's limits: data[row · width + col]
+ * has MASK_HIGH set if a pixel in the block is above a max limit, MASK_LOW if below a min.
+ */
+export interface RangeMask {
+  width: number
+  height: number
+  data: Uint8Array
 }
 
 export interface LumaStats {
@@ -154,6 +166,8 @@ export interface FrameAnalysis {
   histograms: Histograms
   waveform?: WaveformDensity
   vectorscope?: VectorscopeDensity
+  /** With the densities: where the picture is beyond the spec's limits (mask.ts). */
+  rangeMask?: RangeMask
 }
 
 export interface LineSample {

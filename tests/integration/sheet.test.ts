@@ -6,6 +6,7 @@ import { parse } from 'csv-parse/sync'
 import { PDFParse } from 'pdf-parse'
 import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { ENGINE_VERSION } from '../../shared/engine/index'
 import * as t from '../../server/db/schema'
 import { Client } from '../support/api'
 import { closeDb, createTeamWithRoles, db } from '../support/fixtures'
@@ -106,7 +107,7 @@ describe('sign-off', () => {
     signoffId = res.body.signoffId
     expect(res.body.summary).toMatchObject({ overall: 'fail', because: '2 frames rejected', verdicts: { pass: 1, fail: 2, notMeasured: 1 }, decisions: { waived: 1, rejected: 2, none: 1 } })
     const [row] = await db().select().from(t.signoffs).where(eq(t.signoffs.id, signoffId))
-    expect(row).toMatchObject({ reelId, signedBy: team.users.reviewer.id, signerName: 'Test reviewer', specName: 'ntsc-setup', specVersion: 1, engineVersion: '1.0.0' })
+    expect(row).toMatchObject({ reelId, signedBy: team.users.reviewer.id, signerName: 'Test reviewer', specName: 'ntsc-setup', specVersion: 1, engineVersion: ENGINE_VERSION })
     expect((row!.specBody as { limits: unknown[] }).limits).toHaveLength(4)
     const [reel] = await db().select().from(t.reels).where(eq(t.reels.id, reelId))
     expect(reel!.signedBy).toBe(team.users.reviewer.id)
@@ -157,7 +158,7 @@ describe('the sheet', () => {
     expect(text).toContain('Specular glint on the harbour rail')
     expect(text).toContain('Yellow patch over 120 IRE; re-export')
     expect(text).toContain(`sign-off #${signoffId} by Test reviewer`)
-    expect(text).toContain('Linewise engine 1.0.0')
+    expect(text).toContain(`Linewise engine ${ENGINE_VERSION}`)
     expect(text).toContain('take precedence over this sheet')
     // Scope pages for the waived hot1 and the rejected hot2 (the undecodable frame has no scopes).
     expect(text).toContain('Scopes — #2 hot1.png')

@@ -121,8 +121,11 @@ function expectSame(fast: FrameAnalysis, ref: FrameAnalysis, input: FrameInput):
     }
     expect({ ...fw, luma: 0, flat: 0, rgb: 0 }).toEqual({ ...rw, luma: 0, flat: 0, rgb: 0 })
     expect(fast.vectorscope!.size).toBe(ref.vectorscope!.size)
-    fast = { ...fast, waveform: undefined, vectorscope: undefined }
-    ref = { ...ref, waveform: undefined, vectorscope: undefined }
+    // The range mask too, block for block.
+    expect([fast.rangeMask!.width, fast.rangeMask!.height]).toEqual([ref.rangeMask!.width, ref.rangeMask!.height])
+    expect(firstDiff(Uint32Array.from(fast.rangeMask!.data), Uint32Array.from(ref.rangeMask!.data))).toBe(-1)
+    fast = { ...fast, waveform: undefined, vectorscope: undefined, rangeMask: undefined }
+    ref = { ...ref, waveform: undefined, vectorscope: undefined, rangeMask: undefined }
   }
   if (input.kind === 'rgb') {
     expect(fast.luma.mean).toBeCloseTo(ref.luma.mean, 9)
