@@ -8,6 +8,7 @@ import { fromScale } from './scales'
 import type { LevelScale } from './scales'
 import { firstBinAbove, lastBinBelow, LEVEL_BINS, LEVEL_MIN, LEVEL_STEP } from './levels'
 import type { DeliverySpec } from './specs'
+import type { RangeMask } from './types'
 
 /** Mask bits: a pixel above a max limit, below a min limit. */
 export const MASK_HIGH = 1
@@ -68,4 +69,22 @@ export function maskLimits(spec: DeliverySpec, bins: number, pad: number): MaskL
 export function maskGeometry(width: number, height: number, maxWidth = MASK_DEFAULT_WIDTH): { width: number, height: number } {
   const w = Math.max(1, Math.min(width, Math.floor(maxWidth)))
   return { width: w, height: w === width ? height : Math.max(1, Math.round(height * w / width)) }
+}
+
+/**
+ * The overlay image: the picture (R'G'B' bytes at the mask's size, 3 per pixel) with every
+ * marked block painted in the mark's colour, above-limit marks winning over below-limit ones.
+ * Returns a new buffer; the picture is left as it was.
+ */
+export function paintRangeMask(picture: Uint8Array, mask: RangeMask, high: readonly [number, number, number], low: readonly [number, number, number]): Uint8Array {
+  const { width, height, data } = mask
+  if (picture.length !== width * height * 3) throw new Error(`picture is not ${width}×${height} R'G'B'`)
+  const out = new Uint8Array(picture)
+  for (let i = 0, o = 0; i < data.length; i++, o += 3) {
+    const m = data[i]!
+    if (m === 0) continue
+    const c = m & MASK_HIGH ? high : low
+    out[o] = c[0]; out[o + 1] = c[1]; out[o + 2] = c[2]
+  }
+  return out
 }
