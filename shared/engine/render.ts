@@ -349,6 +349,12 @@ export interface RangeOverlayImage extends RgbaImage {
 const OVERLAY_HIGH = 1
 const OVERLAY_LOW = 2
 
+/** Size of the range overlay of a width × height frame drawn at most maxWidth wide. */
+export function overlayGeometry(width: number, height: number, maxWidth?: number): { width: number, height: number } {
+  const w = maxWidth === undefined ? width : Math.min(width, Math.max(1, Math.floor(maxWidth)))
+  return { width: w, height: w === width ? height : Math.max(1, Math.round(height * w / width)) }
+}
+
 /**
  * The frame as RGBA (R'G'B' clipped to 0..255 for display) with every pixel beyond a limit
  * of the spec painted: one colour for too high, another for too low (too high wins where a
@@ -364,9 +370,7 @@ export function renderRangeOverlay(input: FrameInput, spec: DeliverySpec, opts: 
   const matrix = resolveMatrix(opts.matrix)
   const src = makeRowSource(input, matrix)
   const { width, height } = src
-  const maxWidth = opts.maxWidth === undefined ? width : Math.max(1, Math.floor(opts.maxWidth))
-  const outW = Math.min(width, maxWidth)
-  const outH = outW === width ? height : Math.max(1, Math.round(height * outW / width))
+  const { width: outW, height: outH } = overlayGeometry(width, height, opts.maxWidth)
   if (outW * outH > 64e6) throw new EngineInputError('frame too large for an overlay')
   const mask = opts.mask
   if (mask && (mask.width !== outW || mask.height !== outH || mask.data.length < outW * outH)) {

@@ -45,6 +45,39 @@ describe('frame images', () => {
     expect([...data.subarray(at, at + 3)]).toEqual([...PALETTE.overlayHigh])
   })
 
+  it('paints the engine\'s mask on a libvips-scaled picture for full-range 8-bit stills, marking the blocks its own tests would', async () => {
+    // Full-range grey (128) with one 100 % yellow pixel, composite +130.8 IRE above the 120 IRE
+    // limit, and one 100 % blue, −23.3 IRE below −20 IRE (REFERENCE.md §4, 100 % bars).
+    const W = 1920; const H = 1080
+    const frame = solidRgb8(128, 128, 128, W, H)
+    const d = (frame as Extract<FrameInput, { kind: 'rgb' }>).data
+    d.set([255, 255, 0], (532 * W + 1000) * 3)
+    d.set([0, 0, 255], (1079 * W + 7) * 3)
+    const spec = builtinSpec('ntsc-setup')!
+    const a = analyseFrame(frame, { spec, keepDensities: true })
+    expect(a.reasons.map(r => r.limit).sort()).toEqual(['composite-max', 'composite-min'])
+    const steps: string[] = []
+    const images = await renderFrameImages(frame, a, spec, '601', async (name, f) => { steps.push(name); return f() })
+    expect(steps.slice(0, 3)).toEqual(['overlay picture (libvips)', 'overlay paint', 'overlay png'])
+    const { data, info } = await decode(images.overlay.data)
+    expect([info.width, info.height, info.channels]).toEqual([OVERLAY_WIDTH, 720, 3])
+    const own = renderRangeOverlay(frame, spec, { maxWidth: OVERLAY_WIDTH })
+    const isMark = (c: number[]) => [PALETTE.overlayHigh, PALETTE.overlayLow].findIndex(m => m.every((v, k) => v === c[k])) + 1
+    const marks: string[] = []
+    const ownMarks: string[] = []
+    for (let i = 0; i < OVERLAY_WIDTH * 720; i++) {
+      const m = isMark([...data.subarray(i * 3, i * 3 + 3)])
+      if (m) marks.push(`${i % OVERLAY_WIDTH},${Math.floor(i / OVERLAY_WIDTH)}:${m}`)
+      const o = isMark([...own.data.subarray(i * 4, i * 4 + 3)])
+      if (o) ownMarks.push(`${i % OVERLAY_WIDTH},${Math.floor(i / OVERLAY_WIDTH)}:${o}`)
+    }
+    // Computed blocks: (⌊1000·2/3⌋, ⌊532·2/3⌋) = (666, 354) above, (⌊7·2/3⌋, ⌊1079·2/3⌋) = (4, 719) below.
+    expect(marks).toEqual(['666,354:1', '4,719:2'])
+    expect(ownMarks).toEqual(marks)
+    // Away from the marks the picture is the grey frame.
+    expect([...data.subarray(0, 3)]).toEqual([128, 128, 128])
+  })
+
   it('makes the thumbnail of a raw Y\'CbCr capture from the same pass, as a JPEG', async () => {
     // 720×486 UYVY, the BT.601 raster (REFERENCE.md §5): 320 wide → 486 · 320/720 = 216 rows.
     const pairs = Array.from({ length: 360 }, (_, k): [number, number, number, number] => [16 + (k % 200), 16 + (k % 200), 128, 128])
