@@ -104,7 +104,7 @@ describe('properties', () => {
     fc.assert(fc.property(fc.oneof(wide, rgbFrame), (input) => {
       const plain = analyseFrame(input)
       const dense = analyseFrame(input, { keepDensities: true })
-      const { histograms: h1, waveform, vectorscope, ...rest1 } = dense
+      const { histograms: h1, waveform, vectorscope, rangeMask, ...rest1 } = dense
       const { histograms: h0, ...rest0 } = plain
       expect(rest1).toEqual(rest0)
       expect(h1).toEqual(h0)
@@ -112,6 +112,10 @@ describe('properties', () => {
       expect(sum(waveform!.luma)).toBe(n)
       expect(sum(waveform!.flat)).toBe(2 * n)
       for (const d of [waveform!.rgb.r, waveform!.rgb.g, waveform!.rgb.b, vectorscope!.data]) expect(sum(d)).toBe(n)
+      // The range mask is the frame's size here (under 1280 wide), and with the default spec's
+      // zero area tolerance a frame fails exactly when some pixel is beyond a limit.
+      expect([rangeMask!.width, rangeMask!.height]).toEqual([input.width, input.height])
+      expect(rangeMask!.data.some(v => v !== 0)).toBe(dense.verdict === 'fail')
     }), { numRuns: 25 })
   })
 
