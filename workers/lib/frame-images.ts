@@ -16,7 +16,7 @@ export const OVERLAY_WIDTH = 1280
 /**
  * zlib levels, measured on the noisy 1080p benchmark frames (CPU, one libvips thread). The
  * overlay is a picture, and camera noise leaves zlib little to find: level 1 took about 4×
- * the CPU of storing it (level 0: 7 ms against 29 ms at 1280×720) for a file only a sixth
+ * the CPU of storing it (level 0: 3–7 ms against 29 ms at 1280×720) for a file only a sixth
  * smaller (2.3 MB against 2.8 MB). The scope images are small: level 1 takes about 70 % of
  * level 2's CPU for files about a third larger. Row filters (adaptiveFiltering) take a
  * quarter off the overlay for 1.6× level 1's CPU and make the scope images larger; a
