@@ -114,30 +114,33 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
           const { y, pb, pr, r, g, b } = o
           let i = row * width * channels
           for (let x = 0; x < width; x++, i += channels) {
-            const rr = data[i]! * scale + offset
-            const gg = data[i + 1]! * scale + offset
-            const bb = data[i + 2]! * scale + offset
-            // Written around G' so that R' = G' = B' gives Y' = G' exactly, and grey carries no chroma.
-            const yu = gg + kr * (rr - gg) + kb * (bb - gg)
-            r[x] = rr
+            const cg = data[i + 1]!
+            const dr = (data[i]! - cg) * scale
+            const db = (data[i + 2]! - cg) * scale
+            const gg = cg * scale + offset
+            // Written around G' so that R' = G' = B' gives Y' = G' exactly and grey carries no
+            // chroma; Y' − G', and with it Pb and Pr, from the code differences R' − G' and
+            // B' − G' alone, which lets fast.ts tabulate chroma per difference pair.
+            const t = kr * dr + kb * db
+            r[x] = data[i]! * scale + offset
             g[x] = gg
-            b[x] = bb
-            y[x] = 16 + 219 * yu
-            pb[x] = (bb - yu) / cbDiv
-            pr[x] = (rr - yu) / crDiv
+            b[x] = data[i + 2]! * scale + offset
+            y[x] = 16 + 219 * (gg + t)
+            pb[x] = (db - t) / cbDiv
+            pr[x] = (dr - t) / crDiv
           }
         },
         chromaShift: 0,
         readYcc(row, y, pb, pr, x0, x1) {
           let i = (row * width + x0) * channels
           for (let x = 0, n = x1 - x0; x < n; x++, i += channels) {
-            const rr = data[i]! * scale + offset
-            const gg = data[i + 1]! * scale + offset
-            const bb = data[i + 2]! * scale + offset
-            const yu = gg + kr * (rr - gg) + kb * (bb - gg)
-            y[x] = 16 + 219 * yu
-            pb[x] = (bb - yu) / cbDiv
-            pr[x] = (rr - yu) / crDiv
+            const cg = data[i + 1]!
+            const dr = (data[i]! - cg) * scale
+            const db = (data[i + 2]! - cg) * scale
+            const t = kr * dr + kb * db
+            y[x] = 16 + 219 * (cg * scale + offset + t)
+            pb[x] = (db - t) / cbDiv
+            pr[x] = (dr - t) / crDiv
           }
         },
       }

@@ -207,12 +207,13 @@ describe('fast kernels equal the reference pass', () => {
     }
   })
 
-  it('8-bit R\'G\'B\' measured pixel by pixel, by runs, or switching between them, gives the same', () => {
+  it('8-bit R\'G\'B\' measured pixel by pixel (chroma looked up or computed), by runs, or switching between them, gives the same', () => {
     // The kernel picks per stripe; each route on its own must equal the reference too.
-    const saved = fastMode.rgb
+    const saved = { ...fastMode }
     try {
-      for (const mode of ['direct', 'runs', 'auto'] as const) {
+      for (const [mode, chroma] of [['direct', 'table'], ['direct', 'math'], ['runs', 'auto'], ['auto', 'auto'], ['auto', 'math']] as const) {
         fastMode.rgb = mode
+        fastMode.chroma = chroma
         fc.assert(fc.property(fc.tuple(shape, fc.constantFrom('rgb3', 'rgb4', 'rgbStudio')), fc.constantFrom<MatrixName>('601', '709'), ([sh, kind], matrix) => {
           const input = frameOf({ ...sh, h: sh.h * 3 }, kind)
           expectSame(analyseFrame(input, { matrix, keepDensities: true }), analyseFrameReference(input, { matrix, keepDensities: true }), input)
@@ -220,7 +221,7 @@ describe('fast kernels equal the reference pass', () => {
       }
     }
     finally {
-      fastMode.rgb = saved
+      Object.assign(fastMode, saved)
     }
   })
 
@@ -245,14 +246,14 @@ describe('fast kernels equal the reference pass', () => {
         }
         let bad = 0; let outs = 0; let studio = 0
         for (let r = 0; r < 256; r++) {
-          const rr = v[r]!
           for (let g = 0; g < 256; g++) {
             const gg = v[g]!
             for (let b = 0; b < 256; b++) {
-              const bb = v[b]!
-              const yu = gg + kr * (rr - gg) + kb * (bb - gg)
-              const y = 16 + 219 * yu
-              const pb = (bb - yu) / cbDiv; const pr = (rr - yu) / crDiv
+              // decode.ts: Y' − G' and the colour differences from the code differences.
+              const dr = (r - g) * scale; const db = (b - g) * scale
+              const t = kr * dr + kb * db
+              const y = 16 + 219 * (gg + t)
+              const pb = (db - t) / cbDiv; const pr = (dr - t) / crDiv
               const yr = y + rK * pr; const yg = y + (gR * pr + gB * pb); const yb = y + bK * pb
               bad += +(((yr * LV_SCALE + LV_OFF) | 0) !== bin[r]) + +(((yg * LV_SCALE + LV_OFF) | 0) !== bin[g]) + +(((yb * LV_SCALE + LV_OFF) | 0) !== bin[b])
               const gamut = +(yr > gamHi) | +(yg > gamHi) | +(yb > gamHi) | +(yr < gamLo) | +(yg < gamLo) | +(yb < gamLo)
