@@ -3,7 +3,7 @@
 // analysis row and writes nothing new.
 import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
-import { ENGINE_VERSION, analyseFrame } from '../shared/engine'
+import { AnalysisScratch, ENGINE_VERSION, analyseFrame } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
 import { analysisJson } from '../shared/utils/report'
 import type { Db } from '../server/db/client'
@@ -34,6 +34,8 @@ function failReason(e: unknown) {
   return msg.slice(0, 480)
 }
 
+const scratchPool: AnalysisScratch[] = []
+
 export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{ status: 'done' | 'skipped' }> {
   const { db, storage } = deps
   const { frameId } = job.data
@@ -57,8 +59,18 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
       width: frame.width, height: frame.height, maxPixels: UPLOAD_LIMITS.maxPixels,
     })
     const { spec, version } = await specForProduction(db, reel.productionId)
-    const a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true })
-    const images = await renderFrameImages(input, a, spec, reel.matrix)
+    // Density buffers are reused from job to job (8 MB per 1080p frame otherwise allocated
+    // and collected); one scratch per job in flight, returned once its images are drawn.
+    const scratch = scratchPool.pop() ?? new AnalysisScratch()
+    let a: ReturnType<typeof analyseFrame>
+    let images: Awaited<ReturnType<typeof renderFrameImages>>
+    try {
+      a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true, scratch })
+      images = await renderFrameImages(input, a, spec, reel.matrix)
+    }
+    finally {
+      scratchPool.push(scratch)
+    }
     await Promise.all(Object.entries(images).map(([kind, img]) =>
       storage.put(keys.image(frame.teamId, frame.id, kind), img.data, img.contentType)))
     const json = analysisJson(a, spec.name)

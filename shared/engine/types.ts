@@ -48,6 +48,8 @@ export interface AnalyseOptions {
   keepDensities?: boolean
   /** Width of the range mask made with the densities (default MASK_DEFAULT_WIDTH, never wider than the frame). */
   maskWidth?: number
+  /** Reusable buffers for the densities and mask (analyse.ts AnalysisScratch); they then hold only until its next use. */
+  scratch?: { u32(name: string, n: number): Uint32Array, u8(name: string, n: number): Uint8Array }
 }
 
 /**

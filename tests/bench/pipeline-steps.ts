@@ -10,13 +10,14 @@
 // is printed beside the median.
 // Not a test: the numbers vary with the machine and its load.
 import sharp from 'sharp'
-import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine/index'
+import { AnalysisScratch, analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine/index'
 import { decodeBytes } from '../../workers/lib/decode-file'
 import { configureSharp, renderFrameImages, type Step } from '../../workers/lib/frame-images'
 import { framePixels, HEIGHT, WIDTH } from './pipeline-frames.mjs'
 
 const ROUNDS = Number(process.env.ROUNDS ?? 7)
 const spec = builtinSpec(DEFAULT_SPEC_NAME)!
+const scratch = new AnalysisScratch()
 // As each analysis thread of the worker does on start.
 configureSharp()
 
@@ -42,7 +43,8 @@ for (let i = 0; i <= ROUNDS; i++) {
   const bytes = await sharp(framePixels(i), { raw: { width: WIDTH, height: HEIGHT, channels: 3 } }).png().toBuffer()
   pngBytes = bytes.length
   const input = await step('decode', () => decodeBytes(bytes, { range: 'full' }))
-  const a = await step('engine', () => analyseFrame(input, { matrix: '601', spec, keepDensities: true }))
+  // As the worker does: density buffers reused from frame to frame.
+  const a = await step('engine', () => analyseFrame(input, { matrix: '601', spec, keepDensities: true, scratch }))
   const images = await renderFrameImages(input, a, spec, '601', step)
   if (i === ROUNDS) sizes = Object.fromEntries(Object.entries(images).map(([k, v]) => [k, v.data.length]))
   if (i === 0) times.clear()
