@@ -10,7 +10,9 @@
 // With several built apps (copies of .output), each is measured in turn against the same
 // services and frames, in alternating rounds, so a before/after comparison shares the
 // machine's load. LW_BENCH_FRAMES, LW_BENCH_PER_REQUEST, LW_BENCH_PARALLEL, LW_BENCH_ROUNDS
-// set the load; LW_BENCH_NODE_ARGS adds options to the app's node; LW_BENCH_KEEP_SERVICES=1 leaves the services running afterwards.
+// set the load; LW_BENCH_BUSY=N runs N busy loops meanwhile, standing in for analysis
+// workers that take the cores (a server that blocks its event loop shows it then);
+// LW_BENCH_NODE_ARGS adds options to the app's node; LW_BENCH_KEEP_SERVICES=1 leaves the services running afterwards.
 import { spawn } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
 import { cpSync, readFileSync, rmSync } from 'node:fs'
@@ -108,6 +110,7 @@ async function uploadAll(base, cookie, productionId, files, serverPid) {
 }
 
 let servers = []
+let busy = []
 try {
   ensureNodeModules()
   await startServices(p)
@@ -123,6 +126,8 @@ try {
   servers = await Promise.all(outputs.map((dir, i) => serve(dir, p.ports.app + i, env)))
   const sessions = await Promise.all(servers.map((s) => signIn(s.base)))
   log(`${FRAMES} frames (${mb.toFixed(0)} MB), ${PER_REQUEST} per request, ${PARALLEL} requests at a time, ${ROUNDS} round(s) per app`)
+  busy = Array.from({ length: Number(process.env.LW_BENCH_BUSY ?? 0) }, () => spawn(process.execPath, ['-e', 'for (;;);'], { stdio: 'ignore' }))
+  if (busy.length) log(`${busy.length} busy loop(s) running meanwhile`)
   const results = outputs.map(() => [])
   for (let round = 0; round < ROUNDS; round++) {
     for (const [i, s] of servers.entries()) {
@@ -141,6 +146,7 @@ try {
   console.error(`[linewise] ${e.stack ?? e.message}`)
   process.exitCode = 1
 } finally {
+  for (const b of busy) b.kill('SIGKILL')
   for (const s of servers) {
     await s.stop()
     rmSync(s.copy, { recursive: true, force: true })
