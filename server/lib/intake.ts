@@ -133,7 +133,7 @@ export async function receiveFile(stream: AsyncIterable<Uint8Array>, declared: {
   const w = declared.rawWidth ?? 0
   const h = declared.rawHeight ?? 0
   // Beyond this size the file is refused whatever its bytes are.
-  const cap = raw && w && h && w * h <= UPLOAD_LIMITS.maxPixels ? Math.min(rawBytes(declared.format as 'uyvy', w, h), UPLOAD_LIMITS.maxBytes) : UPLOAD_LIMITS.maxBytes
+  const cap = raw && w && h && w * h <= UPLOAD_LIMITS.maxPixels ? Math.min(rawBytes(declared.format as 'uyvy' | 'v210', w, h), UPLOAD_LIMITS.maxBytes) : UPLOAD_LIMITS.maxBytes
   const hash = createHash('sha256')
   const chunks: Uint8Array[] = []
   const head = new Uint8Array(HEAD_BYTES)
