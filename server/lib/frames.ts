@@ -23,6 +23,8 @@ export interface NewFrame {
   uploadedBy: number | null
   /** Already in S3 (a presigned upload): used as it is instead of storing a copy. */
   storedAt?: string
+  /** SHA-256 of `bytes` (hex) when the caller hashed them as they arrived. */
+  sha256?: string
 }
 
 export type FrameRow = typeof t.frames.$inferSelect
@@ -32,12 +34,12 @@ export type FrameRow = typeof t.frames.$inferSelect
  * existing frame (duplicate: true) when the same bytes are already in this reel.
  */
 export async function createFrame(db: Db, storage: Storage, f: NewFrame): Promise<{ frame: FrameRow; duplicate: boolean }> {
-  const hash = sha256(f.bytes)
+  const hash = f.sha256 ?? sha256(f.bytes)
   const [existing] = await db.select().from(t.frames).where(and(eq(t.frames.reelId, f.reelId), eq(t.frames.sha256, hash))).limit(1)
   if (existing) return { frame: existing, duplicate: true }
   const objectKey = f.storedAt ?? keys.original(f.teamId, f.reelId, hash)
   // The object goes first: a frame row never points at bytes that are not there.
-  if (!f.storedAt) await storage.put(objectKey, f.bytes, contentTypeOf(f.inspected.format))
+  if (!f.storedAt) await storage.put(objectKey, f.bytes, contentTypeOf(f.inspected.format), hash)
   return db.transaction(async (tx) => {
     const [reel] = await tx.select({ nextSeq: t.reels.nextSeq, signedAt: t.reels.signedAt }).from(t.reels).where(eq(t.reels.id, f.reelId)).for('update')
     if (!reel) throw new Error('reel vanished during upload')

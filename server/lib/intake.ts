@@ -1,6 +1,7 @@
 // What an upload must be before it becomes a frame. Plain functions shared by the presigned
 // flow, the multipart API and their tests: the same file is refused for the same reason
 // whichever way it came in.
+import { createHash } from 'node:crypto'
 import sharp from 'sharp'
 import { v210Stride } from '../../shared/engine/decode'
 import { UPLOAD_LIMITS, type FrameFormat } from '../../shared/utils/uploads'
@@ -54,28 +55,44 @@ export interface Inspected {
   height: number
 }
 
+/** describeOther reads this many leading bytes; no check looks further without decoding. */
+const HEAD_BYTES = 512
+
 /**
- * Checks a stored object: size, type from its bytes (never from its name), and dimensions
- * from its header, before anything decodes its pixels.
+ * The checks that need only the size and the first bytes: size, type from the bytes (never
+ * from the name), raw size against the declared width and height. Throws the refusal.
  */
-export async function inspectUpload(bytes: Uint8Array, declared: { format: FrameFormat; rawWidth?: number | null; rawHeight?: number | null }): Promise<Inspected> {
-  if (bytes.length === 0) throw new IntakeError(422, 'The file is empty')
-  if (bytes.length > UPLOAD_LIMITS.maxBytes) throw new IntakeError(413, `The file is larger than ${UPLOAD_LIMITS.maxBytes / 2 ** 20} MiB`)
+function checkSizeAndType(length: number, head: Uint8Array, declared: { format: FrameFormat; rawWidth?: number | null; rawHeight?: number | null }): Inspected | FrameFormat {
+  if (length === 0) throw new IntakeError(422, 'The file is empty')
+  if (length > UPLOAD_LIMITS.maxBytes) throw new IntakeError(413, `The file is larger than ${UPLOAD_LIMITS.maxBytes / 2 ** 20} MiB`)
   if (declared.format === 'uyvy' || declared.format === 'v210') {
     const w = declared.rawWidth ?? 0
     const h = declared.rawHeight ?? 0
     if (!w || !h) throw new IntakeError(422, 'Raw Y\'CbCr needs its width and height')
     if (w * h > UPLOAD_LIMITS.maxPixels) throw new IntakeError(422, `${w}×${h} is more than the ${UPLOAD_LIMITS.maxPixels / 1e6} megapixel limit`)
-    const expected = declared.format === 'uyvy' ? w * h * 2 : v210Stride(w) * h
-    if (bytes.length !== expected) {
-      throw new IntakeError(422, `Raw ${declared.format} at ${w}×${h} should be ${expected} bytes; this file has ${bytes.length}. Check the width, height and format.`)
+    const expected = rawBytes(declared.format, w, h)
+    if (length !== expected) {
+      throw new IntakeError(422, `Raw ${declared.format} at ${w}×${h} should be ${expected} bytes; this file has ${length}. Check the width, height and format.`)
     }
-    const found = sniffFormat(bytes)
+    const found = sniffFormat(head)
     if (found) throw new IntakeError(422, `This is a ${found.toUpperCase()} picture, not raw ${declared.format}`)
     return { format: declared.format, width: w, height: h }
   }
-  const format = sniffFormat(bytes)
-  if (!format) throw new IntakeError(415, `Unsupported file: this is ${describeOther(bytes)}. Linewise reads PNG, TIFF, JPEG and WebP stills, and raw UYVY or v210.`)
+  const format = sniffFormat(head)
+  if (!format) throw new IntakeError(415, `Unsupported file: this is ${describeOther(head)}. Linewise reads PNG, TIFF, JPEG and WebP stills, and raw UYVY or v210.`)
+  return format
+}
+
+const rawBytes = (format: 'uyvy' | 'v210', w: number, h: number) => (format === 'uyvy' ? w * h * 2 : v210Stride(w) * h)
+
+/**
+ * Checks a stored object: size, type from its bytes (never from its name), and dimensions
+ * from its header, before anything decodes its pixels.
+ */
+export async function inspectUpload(bytes: Uint8Array, declared: { format: FrameFormat; rawWidth?: number | null; rawHeight?: number | null }): Promise<Inspected> {
+  const checked = checkSizeAndType(bytes.length, bytes, declared)
+  if (typeof checked === 'object') return checked
+  const format = checked
   let meta: Awaited<ReturnType<ReturnType<typeof sharp>['metadata']>>
   try {
     // Header only: limitInputPixels refuses a decompression bomb before any pixel is decoded.
@@ -88,4 +105,75 @@ export async function inspectUpload(bytes: Uint8Array, declared: { format: Frame
     throw new IntakeError(422, `The picture is ${meta.width}×${meta.height}, more than the ${UPLOAD_LIMITS.maxPixels / 1e6} megapixel limit`)
   }
   return { format, width: meta.width, height: meta.height }
+}
+
+export interface Received {
+  name: string
+  bytes: Uint8Array
+  sha256: string
+  inspected: Inspected
+}
+
+/**
+ * Takes one file as it arrives (a part of a multipart body): counts, hashes and keeps its
+ * bytes, and stops keeping and hashing them as soon as the size or the first bytes show it
+ * will be refused, so a huge or wrong file costs no memory; its bytes are still read to the
+ * end, so the rest of the body goes on. The answer comes from the same checks as
+ * inspectUpload in the same order, so it is the one the whole file would have got.
+ */
+export async function receiveFile(stream: AsyncIterable<Uint8Array>, declared: { name: string; format: FrameFormat; rawWidth?: number | null; rawHeight?: number | null }): Promise<Received> {
+  let name: string
+  try {
+    name = checkFileName(declared.name)
+  } catch (e) {
+    await drain(stream)
+    throw e
+  }
+  const raw = declared.format === 'uyvy' || declared.format === 'v210'
+  const w = declared.rawWidth ?? 0
+  const h = declared.rawHeight ?? 0
+  // Beyond this size the file is refused whatever its bytes are.
+  const cap = raw && w && h && w * h <= UPLOAD_LIMITS.maxPixels ? Math.min(rawBytes(declared.format as 'uyvy' | 'v210', w, h), UPLOAD_LIMITS.maxBytes) : UPLOAD_LIMITS.maxBytes
+  const hash = createHash('sha256')
+  const chunks: Uint8Array[] = []
+  const head = new Uint8Array(HEAD_BYTES)
+  let headLength = 0
+  let length = 0
+  let keeping = !(raw && (!w || !h || w * h > UPLOAD_LIMITS.maxPixels))
+  let typeRefused: boolean | null = null
+  try {
+    for await (const chunk of stream) {
+      length += chunk.length
+      if (headLength < HEAD_BYTES) {
+        const take = chunk.subarray(0, HEAD_BYTES - headLength)
+        head.set(take, headLength)
+        headLength += take.length
+      }
+      if (!keeping) continue
+      // The magic numbers are in the first 12 bytes: from then on the type is known. A still
+      // must be a picture; raw data must not be one.
+      if (typeRefused === null && headLength >= 12) typeRefused = raw ? sniffFormat(head) !== null : sniffFormat(head) === null
+      if (length > cap || typeRefused) {
+        keeping = false
+        chunks.length = 0
+        continue
+      }
+      hash.update(chunk)
+      chunks.push(chunk)
+    }
+  } catch {
+    throw new IntakeError(400, 'The request ended before this file was complete; send it again')
+  }
+  if (!keeping) {
+    checkSizeAndType(length, head.subarray(0, headLength), declared)
+    throw new Error(`receiveFile stopped keeping "${name}" but the checks pass`)
+  }
+  const bytes = Buffer.concat(chunks, length)
+  return { name, bytes, sha256: hash.digest('hex'), inspected: await inspectUpload(bytes, declared) }
+}
+
+async function drain(stream: AsyncIterable<Uint8Array>) {
+  try {
+    for await (const _ of stream) { /* read to its end so the body goes on */ }
+  } catch { /* the refusal already has its reason */ }
 }

@@ -42,8 +42,21 @@ export class Storage {
     })
   }
 
-  async put(key: string, body: Uint8Array, contentType: string) {
-    await this.client.send(new PutObjectCommand({ Bucket: this.bucket, Key: key, Body: body, ContentType: contentType }))
+  /**
+   * `sha256` (hex) is the body's SHA-256 when the caller already has it: the request is then
+   * signed with it instead of the SDK hashing the whole body a second time (SigV4 signs the
+   * payload hash, x-amz-content-sha256; S3 checks it against the bytes it receives).
+   */
+  async put(key: string, body: Uint8Array, contentType: string, sha256?: string) {
+    const command = new PutObjectCommand({ Bucket: this.bucket, Key: key, Body: body, ContentType: contentType })
+    if (sha256) {
+      command.middlewareStack.add((next) => (args) => {
+        const request = args.request as { headers?: Record<string, string> }
+        if (request.headers) request.headers['x-amz-content-sha256'] = sha256
+        return next(args)
+      }, { step: 'build', name: 'knownPayloadHash' })
+    }
+    await this.client.send(command)
   }
 
   async get(key: string): Promise<Uint8Array> {

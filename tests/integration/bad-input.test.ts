@@ -121,6 +121,43 @@ describe('bad uploads', () => {
     expect(JSON.stringify(type.body)).toMatch(/Unsupported type/)
   })
 
+  it('refuses a file over the size limit while it streams in, and stores the file sent after it in the same request', async () => {
+    const good = await png8(96, 54, 921)
+    // A PNG signature followed by zeros, one byte over UPLOAD_LIMITS.maxBytes (256 MiB, the
+    // project's limit), made as it is sent: neither side holds it whole.
+    const boundary = 'linewise-test-boundary'
+    const mib = Buffer.alloc(2 ** 20)
+    const part = (name: string) => Buffer.from(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="${name}"\r\nContent-Type: image/png\r\n\r\n`)
+    async function* body() {
+      yield part('too-big.png')
+      yield Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a])
+      for (let i = 0; i < UPLOAD_LIMITS.maxBytes / 2 ** 20; i++) yield mib
+      yield Buffer.from('\r\n')
+      yield part('after.png')
+      yield good
+      yield Buffer.from(`\r\n--${boundary}--\r\n`)
+    }
+    const res = await fetch(new URL(`/api/reels/${reelId}/frames`, process.env.LW_APP_URL), {
+      // Node's fetch takes an async iterable as a streamed body (duplex: 'half'); the DOM
+      // types do not say so.
+      method: 'POST', body: body(), duplex: 'half',
+      headers: { cookie: editor.cookieHeader(), 'content-type': `multipart/form-data; boundary=${boundary}` },
+    } as unknown as RequestInit)
+    expect(res.status).toBe(207)
+    const { files } = await res.json()
+    expect(files[0]).toEqual({ name: 'too-big.png', ok: false, status: 413, reason: 'The file is larger than 256 MiB' })
+    expect(files[1]).toMatchObject({ name: 'after.png', ok: true, duplicate: false })
+  })
+
+  it(`answers files past ${UPLOAD_LIMITS.maxFilesPerRequest} in one request each with its reason`, async () => {
+    const files = Array.from({ length: UPLOAD_LIMITS.maxFilesPerRequest + 1 }, (_, i) => ({ name: `note-${i}.png`, bytes: Buffer.from(`note ${i}\n`) }))
+    const res = await editor.uploadFrames(reelId, files)
+    expect(res.status).toBe(422)
+    expect(res.body.files).toHaveLength(files.length)
+    expect(res.body.files.slice(0, -1).every((f) => /text file/.test(f.reason ?? ''))).toBe(true)
+    expect(res.body.files.at(-1)).toEqual({ name: `note-${UPLOAD_LIMITS.maxFilesPerRequest}.png`, ok: false, status: 413, reason: 'At most 200 files per request; send this one again in another request' })
+  })
+
   it('refuses a multipart request without files', async () => {
     const form = new FormData()
     form.append('note', 'no file here')
