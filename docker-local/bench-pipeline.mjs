@@ -11,7 +11,7 @@
 // (a build of our own would race theirs on .output and .nuxt).
 import { randomBytes } from 'node:crypto'
 import { availableParallelism, loadavg } from 'node:os'
-import { cpSync, readFileSync, rmSync } from 'node:fs'
+import { cpSync, existsSync, readdirSync, readFileSync, rmSync } from 'node:fs'
 import { basename, join } from 'node:path'
 import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
 import { ensureBuild, ensureNodeModules, log, migrateAndSeed, startApp, waitForHttp } from './stack.mjs'
@@ -35,6 +35,21 @@ async function cleanUp() {
 }
 
 const sleep = (ms) => new Promise((r) => setTimeout(r, ms))
+/** utime + stime of a process and all its threads, in ms (Linux clock ticks are 10 ms); 0 once it is gone. */
+const cpuMs = (pid) => {
+  try {
+    const f = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1].split(' ')
+    return (Number(f[11]) + Number(f[12])) * 10
+  } catch { return 0 }
+}
+
+/** The processes whose CPU the run is charged with, by the PID files the stack writes. */
+function benchPids() {
+  const pid = (file) => (existsSync(join(p.runDir, file)) ? Number(readFileSync(join(p.runDir, file), 'utf8').trim()) : 0)
+  const apps = Object.fromEntries(readdirSync(p.runDir).filter((f) => /^app-.*\.pid$/.test(f)).map((f) => [f.split('-')[1], pid(f)]))
+  return { 'app server': apps.server ?? 0, worker: apps.worker ?? 0, 'S3 fake': pid('s3.pid'), MariaDB: pid('mariadb.pid'), Redis: pid('redis.pid'), 'bench client': process.pid }
+}
+
 const pct = (sorted, q) => sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil(q * sorted.length) - 1))]
 
 async function api(base, cookie, method, path, body) {
@@ -66,7 +81,7 @@ try {
   const outputDir = join(p.dataDir, 'output')
   rmSync(outputDir, { recursive: true, force: true })
   cpSync(join(ROOT, '.output'), outputDir, { recursive: true })
-  stopApp = startApp(env, { port: p.ports.app, runDir: p.runDir, quiet: true, outputDir })
+  stopApp = startApp(env, { port: p.ports.app, runDir: p.runDir, quiet: !process.env.LW_BENCH_VERBOSE, outputDir })
   const base = env.NUXT_PUBLIC_APP_URL
   await waitForHttp(`${base}/login`)
 
@@ -85,6 +100,8 @@ try {
   const { json: reel } = await api(base, cookie, 'POST', `/api/productions/${productionId}/reels`, { name: `Bench ${new Date().toISOString()}` })
 
   log(`uploading ${FRAMES} frames (${totalMb.toFixed(0)} MB), ${PER_REQUEST} per request, ${PARALLEL} requests at a time`)
+  const pids = benchPids()
+  const cpu0 = Object.fromEntries(Object.entries(pids).map(([k, pid]) => [k, cpuMs(pid)]))
   const t0 = Date.now()
   const batches = []
   for (let i = 0; i < files.length; i += PER_REQUEST) batches.push(files.slice(i, i + PER_REQUEST))
@@ -130,6 +147,7 @@ try {
     await sleep(200)
   }
   const wallMs = Date.now() - t0
+  const cpu = Object.entries(pids).map(([k, pid]) => [k, (cpuMs(pid) - cpu0[k]) / FRAMES])
   process.stdout.write('\n')
   const [rows] = await conn.query(`SELECT f.created_at AS stored, a.created_at AS analysed, a.duration_ms AS job
     FROM frames f JOIN analyses a ON a.frame_id = f.id WHERE f.reel_id = ?`, [reel.id])
@@ -147,6 +165,8 @@ try {
   throughput                 ${fps.toFixed(2)} frames/s (first stored → last result)
   upload → result            p50 ${(pct(lat, 0.5) / 1000).toFixed(1)} s, p95 ${(pct(lat, 0.95) / 1000).toFixed(1)} s
   one job in the worker      p50 ${pct(jobs, 0.5)} ms, p95 ${pct(jobs, 0.95)} ms (fetch, decode, engine, images, puts)
+  CPU per frame              ${cpu.map(([k, ms]) => `${k} ${ms.toFixed(0)} ms`).join(', ')}
+                             total ${cpu.reduce((t, [, ms]) => t + ms, 0).toFixed(0)} ms; ${availableParallelism()} cores give ${(availableParallelism() * 1000 / cpu.reduce((t, [, ms]) => t + ms, 0)).toFixed(1)} frames/s at most
 `)
   code = rows.length === FRAMES ? 0 : 1
 } catch (e) {

@@ -89,8 +89,11 @@ export function startApp(env, { port, runDir, quiet = false, onExit, outputDir =
     children.push(child)
     if (runDir) writeFileSync(join(runDir, `app-${name}-${child.pid}.pid`), String(child.pid))
   }
-  add('server', [join(outputDir, 'server/index.mjs')], { PORT: String(port), HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', NITRO_PORT: String(port) })
-  add('worker', ['--import', 'tsx', join(ROOT, 'workers/index.ts')])
+  // LW_SERVER_NODE_ARGS / LW_WORKER_NODE_ARGS, e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof", to
+  // see where a benchmark's time goes (Node refuses --cpu-prof in NODE_OPTIONS).
+  const nodeArgs = (name) => (process.env[name] ?? '').split(' ').filter(Boolean)
+  add('server', [...nodeArgs('LW_SERVER_NODE_ARGS'), join(outputDir, 'server/index.mjs')], { PORT: String(port), HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', NITRO_PORT: String(port) })
+  add('worker', [...nodeArgs('LW_WORKER_NODE_ARGS'), '--import', 'tsx', join(ROOT, 'workers/index.ts')])
   return async function stop() {
     if (runDir) {
       for (const f of readdirSync(runDir).filter((f) => f.startsWith('app-') && f.endsWith('.pid'))) {
