@@ -66,7 +66,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     let images: Awaited<ReturnType<typeof renderFrameImages>>
     try {
       a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true, scratch })
-      images = await renderFrameImages(input, a, spec, reel.matrix)
+      images = await renderFrameImages(input, a, reel.matrix)
     }
     finally {
       scratchPool.push(scratch)

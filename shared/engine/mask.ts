@@ -72,19 +72,19 @@ export function maskGeometry(width: number, height: number, maxWidth = MASK_DEFA
 }
 
 /**
- * The overlay image: the picture (R'G'B' bytes at the mask's size, 3 per pixel) with every
- * marked block painted in the mark's colour, above-limit marks winning over below-limit ones.
- * Returns a new buffer; the picture is left as it was.
+ * The overlay layer: RGBA at the mask's size, transparent where nothing is marked and the
+ * mark's colour (opaque) where a block is, above-limit marks winning over below-limit ones.
+ * Laid over the picture by the frame page; mostly transparent, so its PNG is a few kB where
+ * a painted copy of the picture was megabytes.
  */
-export function paintRangeMask(picture: Uint8Array, mask: RangeMask, high: readonly [number, number, number], low: readonly [number, number, number]): Uint8Array {
-  const { width, height, data } = mask
-  if (picture.length !== width * height * 3) throw new Error(`picture is not ${width}×${height} R'G'B'`)
-  const out = new Uint8Array(picture)
-  for (let i = 0, o = 0; i < data.length; i++, o += 3) {
+export function renderMaskLayer(mask: RangeMask, high: readonly [number, number, number], low: readonly [number, number, number]): Uint8Array {
+  const { data } = mask
+  const out = new Uint8Array(data.length * 4)
+  for (let i = 0, o = 0; i < data.length; i++, o += 4) {
     const m = data[i]!
     if (m === 0) continue
     const c = m & MASK_HIGH ? high : low
-    out[o] = c[0]; out[o + 1] = c[1]; out[o + 2] = c[2]
+    out[o] = c[0]; out[o + 1] = c[1]; out[o + 2] = c[2]; out[o + 3] = 255
   }
   return out
 }

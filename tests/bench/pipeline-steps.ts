@@ -45,7 +45,7 @@ for (let i = 0; i <= ROUNDS; i++) {
   const input = await step('decode', () => decodeBytes(bytes, { range: 'full' }))
   // As the worker does: density buffers reused from frame to frame.
   const a = await step('engine', () => analyseFrame(input, { matrix: '601', spec, keepDensities: true, scratch }))
-  const images = await renderFrameImages(input, a, spec, '601', step)
+  const images = await renderFrameImages(input, a, '601', step)
   if (i === ROUNDS) sizes = Object.fromEntries(Object.entries(images).map(([k, v]) => [k, v.data.length]))
   if (i === 0) times.clear()
 }

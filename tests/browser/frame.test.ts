@@ -161,7 +161,11 @@ describe('the frame page', () => {
 
   it('paints the range overlay and explains its colours', async () => {
     await ed.getByTestId('overlay-toggle').check()
-    await expect.poll(() => ed.getByTestId('frame-image').getAttribute('src')).toContain('/images/overlay')
+    // The marks come as a layer over the picture, which stays as it was.
+    await expect.poll(() => ed.getByTestId('overlay-image').getAttribute('src')).toContain('/images/overlay')
+    expect(await ed.getByTestId('frame-image').getAttribute('data-overlay')).toBe('on')
+    expect(await ed.getByTestId('frame-image').getAttribute('src')).not.toContain('/images/overlay')
+    await expect.poll(() => ed.getByTestId('overlay-image').evaluate(img => (img as HTMLImageElement).naturalWidth)).toBeGreaterThan(0)
     expect(await ed.getByTestId('overlay-legend').innerText()).toMatch(/Above a maximum[\s\S]*Below a minimum/)
     await ed.getByTestId('waveform-mode-both').check({ force: true })
     await ed.getByTestId('waveform-waveform-flat').waitFor()

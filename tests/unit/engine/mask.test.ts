@@ -4,7 +4,7 @@
 // §2.5 / Table 3 (REFERENCE.md §1, §3); 100 IRE white and 7.5 IRE setup on those codes —
 // SMPTE 170M (REFERENCE.md §4, clause from memory).
 import { describe, expect, it } from 'vitest'
-import { analyseFrame, builtinSpec, MASK_HIGH, MASK_LOW, packV210, paintRangeMask } from '../../../shared/engine/index'
+import { analyseFrame, builtinSpec, MASK_HIGH, MASK_LOW, packV210, renderMaskLayer } from '../../../shared/engine/index'
 import { analyseFrameReference } from '../../../shared/engine/analyse'
 import type { DeliverySpec, FrameInput } from '../../../shared/engine/index'
 
@@ -83,13 +83,10 @@ describe('range mask', () => {
   })
 })
 
-describe('paintRangeMask', () => {
-  it('paints marked blocks, above-limit over below-limit, and leaves the rest of the picture', () => {
-    const picture = Uint8Array.from({ length: 4 * 3 }, (_, i) => i)
+describe('renderMaskLayer', () => {
+  it('is transparent where nothing is marked and opaque in the mark\'s colour where a block is, above over below', () => {
     const mask = { width: 2, height: 2, data: Uint8Array.from([0, MASK_HIGH, MASK_LOW, MASK_HIGH | MASK_LOW]) }
-    const out = paintRangeMask(picture, mask, [255, 0, 255], [0, 64, 255])
-    expect([...out]).toEqual([0, 1, 2, 255, 0, 255, 0, 64, 255, 255, 0, 255])
-    expect([...picture]).toEqual(Array.from({ length: 12 }, (_, i) => i))
-    expect(() => paintRangeMask(new Uint8Array(5), mask, [0, 0, 0], [0, 0, 0])).toThrow(/2×2/)
+    const out = renderMaskLayer(mask, [255, 0, 255], [0, 64, 255])
+    expect([...out]).toEqual([0, 0, 0, 0, 255, 0, 255, 255, 0, 64, 255, 255, 255, 0, 255, 255])
   })
 })

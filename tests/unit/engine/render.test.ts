@@ -2,11 +2,11 @@
 // (waveform.ts, render.ts); bar target positions follow REFERENCE.md §4 (U, V equations).
 import { describe, expect, it } from 'vitest'
 import {
-  analyseFrame, barTargets, builtinSpec, PALETTE, renderHistogram, renderRangeOverlay, renderVectorscope, renderWaveform,
+  analyseFrame, barTargets, PALETTE, renderHistogram, renderVectorscope, renderWaveform,
   vectorscopeCell, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP,
 } from '../../../shared/engine/index'
-import type { FrameInput, RgbaImage } from '../../../shared/engine/index'
-import { solidRgb8, uyvyRow } from './helpers'
+import type { RgbaImage } from '../../../shared/engine/index'
+import { uyvyRow } from './helpers'
 
 const px = (img: RgbaImage, x: number, y: number) => Array.from(img.data.subarray((y * img.width + x) * 4, (y * img.width + x) * 4 + 4))
 const snapshot = (img: RgbaImage): RgbaImage => ({ ...img, data: img.data.slice() })
@@ -93,92 +93,7 @@ describe('vectorscope', () => {
   })
 })
 
-describe('range overlay and histogram images', () => {
-  it('paints levels above a limit in one colour, below in another, and shows the rest as the picture', () => {
-    const frame = uyvyRow([[250, 126, 128, 128], [8, 235, 128, 128]], 1)
-    const img = renderRangeOverlay(frame, builtinSpec('digital-studio')!)
-    expect(img.width).toBe(4)
-    expect(px(img, 0, 0)).toEqual([...PALETTE.overlayHigh, 255])
-    expect(px(img, 2, 0)).toEqual([...PALETTE.overlayLow, 255])
-    // Code 126 is grey at (126 − 16)/219 = 0.5023 → 128; code 235 is white, exactly at the limit.
-    expect(px(img, 1, 0)).toEqual([128, 128, 128, 255])
-    expect(px(img, 3, 0)).toEqual([255, 255, 255, 255])
-  })
-
-  it('drawn smaller, marks a block if any one of its pixels is beyond a limit: a lone hot pixel in 1080p stays visible', () => {
-    // A studio-range grey frame (code 126) with one super-white pixel (code 250 > white 235)
-    // and one sub-black pixel (code 8 < black 16): BT.601 Table 3 (REFERENCE.md §1).
-    const W = 1920; const H = 1080
-    const frame = solidRgb8(126, 126, 126, W, H, 'studio')
-    const put = (x: number, y: number, code: number) => (frame as Extract<FrameInput, { kind: 'rgb' }>).data.fill(code, (y * W + x) * 3, (y * W + x) * 3 + 3)
-    put(1000, 532, 250)
-    put(7, 1079, 8)
-    const spec = builtinSpec('digital-studio')!
-    // The verdict on the same pixels: one pixel in 1920×1080 above white, one below black.
-    const a = analyseFrame(frame, { spec })
-    expect(a.shares.aboveWhite).toBeCloseTo(1 / (W * H), 12)
-    expect(a.shares.belowBlack).toBeCloseTo(1 / (W * H), 12)
-    expect(a.reasons.map(r => r.limit).sort()).toEqual(['luma-max', 'luma-min'])
-
-    const img = renderRangeOverlay(frame, spec, { maxWidth: 1280, withPicture: true })
-    expect([img.width, img.height]).toEqual([1280, 720])
-    // Computed: frame column x lands in image column ⌊x·1280/1920⌋, row y in ⌊y·720/1080⌋, so
-    // (1000, 532) is in block (666, 354) with columns 999–1000 and rows 531–532, and (7, 1079)
-    // in block (4, 719) with columns 6–7 and row 1079 alone.
-    expect(px(img, 666, 354)).toEqual([...PALETTE.overlayHigh, 255])
-    expect(px(img, 4, 719)).toEqual([...PALETTE.overlayLow, 255])
-    const differs = (i: number) => [0, 1, 2].some(c => img.data[i * 4 + c] !== img.picture!.data[i * 3 + c])
-    let marked = 0
-    for (let i = 0; i < img.width * img.height; i++) if (differs(i)) marked++
-    expect(marked).toBe(2)
-    // Elsewhere the picture: code 126 is (126 − 16)/219 = 0.50228 → 128.08 → 128 for display.
-    expect(px(img, 0, 0)).toEqual([128, 128, 128, 255])
-    // The unmarked picture averages each block, every pixel clipped for display first:
-    // (3 · 128.08 + 255) / 4 = 159.81 → 160 (code 250 shows as white), (128.08 + 0) / 2 = 64.04 → 64.
-    const pic = (x: number, y: number) => Array.from(img.picture!.data.subarray((y * 1280 + x) * 3, (y * 1280 + x) * 3 + 3))
-    expect(pic(666, 354)).toEqual([160, 160, 160])
-    expect(pic(4, 719)).toEqual([64, 64, 64])
-  })
-
-  it('takes the marks from a mask when one is given, and reads the frame for the picture only', () => {
-    const W = 1920; const H = 1080
-    const frame = solidRgb8(126, 126, 126, W, H, 'studio')
-    ;(frame as Extract<FrameInput, { kind: 'rgb' }>).data.fill(250, (532 * W + 1000) * 3, (532 * W + 1000) * 3 + 3)
-    ;(frame as Extract<FrameInput, { kind: 'rgb' }>).data.fill(8, (1079 * W + 7) * 3, (1079 * W + 7) * 3 + 3)
-    const spec = builtinSpec('digital-studio')!
-    const own = renderRangeOverlay(frame, spec, { maxWidth: 1280 })
-    // A mask of exactly the blocks the overlay marked itself (computed) gives the same image.
-    const same = new Uint8Array(1280 * 720)
-    for (let i = 0; i < same.length; i++) {
-      const c = [own.data[i * 4], own.data[i * 4 + 1], own.data[i * 4 + 2]]
-      same[i] = c.every((v, k) => v === PALETTE.overlayHigh[k]) ? 1 : c.every((v, k) => v === PALETTE.overlayLow[k]) ? 2 : 0
-    }
-    expect(same.reduce((n, v) => n + (v ? 1 : 0), 0)).toBe(2)
-    expect(firstDiff(renderRangeOverlay(frame, spec, { maxWidth: 1280, mask: { width: 1280, height: 720, data: same } }), own)).toBe(-1)
-    // The mask is used as given: its block is marked, the hot pixel's block is not.
-    const other = new Uint8Array(1280 * 720)
-    other[10 * 1280 + 20] = 2
-    const img = renderRangeOverlay(frame, spec, { maxWidth: 1280, mask: { width: 1280, height: 720, data: other } })
-    expect(px(img, 20, 10)).toEqual([...PALETTE.overlayLow, 255])
-    expect(px(img, 666, 354)).toEqual([160, 160, 160, 255])
-    expect(() => renderRangeOverlay(frame, spec, { maxWidth: 1280, mask: { width: 1280, height: 719, data: other } })).toThrow(/1280×719/)
-  })
-
-  it('averages the picture over each block and keeps the full size when the frame is narrow enough', () => {
-    // Full-range grey codes 100 and 201 side by side: the 2×2 blocks average to 150.5 → 150 (round half to even, as a Uint8ClampedArray stores).
-    const frame = solidRgb8(0, 0, 0, 4, 2)
-    const d = (frame as Extract<FrameInput, { kind: 'rgb' }>).data
-    for (let y = 0; y < 2; y++) for (let x = 0; x < 4; x++) d.fill(x % 2 ? 201 : 100, (y * 4 + x) * 3, (y * 4 + x) * 3 + 3)
-    const spec = builtinSpec('ebu-r103-v3')!
-    const small = renderRangeOverlay(frame, spec, { maxWidth: 2 })
-    expect([small.width, small.height]).toEqual([2, 1])
-    expect(px(small, 0, 0)).toEqual([150, 150, 150, 255])
-    expect(px(small, 1, 0)).toEqual([150, 150, 150, 255])
-    const full = renderRangeOverlay(frame, spec, { maxWidth: 1280 })
-    expect(full.data).toEqual(renderRangeOverlay(frame, spec).data)
-    expect(px(full, 1, 1)).toEqual([201, 201, 201, 255])
-  })
-
+describe('histogram image', () => {
   it('histogram image marks studio black and white', () => {
     const a = analyseFrame(uyvyRow([[16, 235, 128, 128]], 2))
     const img = renderHistogram(a.histograms)
