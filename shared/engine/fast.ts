@@ -749,6 +749,22 @@ function rgb8(data: Uint8Array, width: number, height: number, chans: number, fu
     QX[m] = x0 + p; QR[m] = old & 255; QG[m] = (old >>> 8) & 255; QB[m] = old >>> 16; QN[m] = runs[p]!
     return m + 1
   }
+  // Whole rows of a stripe are compared a 32-bit word at a time where the bytes allow it: a
+  // row the same as the one above (bars, graphics, letterbox) then costs a quarter of the
+  // per-pixel comparison, and its rows are added to every open run at once.
+  const words = data.byteOffset % 4 === 0 && (width * chans) % 4 === 0 && (stripe * chans) % 4 === 0
+    ? new Int32Array(data.buffer, data.byteOffset, data.length >> 2) : undefined
+  const sameAsAbove = (row: number, x0: number, n: number): boolean => {
+    const nb = n * chans
+    const at = (row * width + x0) * chans
+    const above = at - width * chans
+    if (words && nb % 4 === 0) {
+      for (let j = at >> 2, k2 = above >> 2, end = (at + nb) >> 2; j < end; j++, k2++) if (words[j] !== words[k2]) return false
+      return true
+    }
+    for (let j = 0; j < nb; j++) if (data[at + j] !== data[above + j]) return false
+    return true
+  }
   for (let x0 = 0; x0 < width; x0 += stripe) {
     const n = Math.min(stripe, width - x0)
     runs.fill(0)
@@ -756,6 +772,13 @@ function rgb8(data: Uint8Array, width: number, height: number, chans: number, fu
     let direct = fastMode.rgb === 'direct'
     let busy = 0
     let row = 0
+    // Rows that repeated the one above, not yet added to the runs; open: every pixel has a run.
+    let pending = 0
+    let open = false
+    const settle = () => {
+      if (pending) for (let p = 0; p < n; p++) runs[p] = runs[p]! + pending
+      pending = 0
+    }
     while (row < height) {
       if (direct) {
         const r1 = Math.min(height, row + DIRECT_BLOCK)
@@ -767,10 +790,19 @@ function rgb8(data: Uint8Array, width: number, height: number, chans: number, fu
           direct = false
           busy = 0
           runs.fill(0)
+          open = false
         }
         row = r1
         continue
       }
+      if (open && sameAsAbove(row, x0, n)) {
+        pending++
+        busy = 0
+        row++
+        continue
+      }
+      settle()
+      open = true
       let m = 0
       let i = (row * width + x0) * chans
       for (let p = 0; p < n; p++, i += chans) {
@@ -799,6 +831,7 @@ function rgb8(data: Uint8Array, width: number, height: number, chans: number, fu
     }
     if (!direct) {
       // Past the last row: every run still open ends.
+      settle()
       let m = 0
       for (let p = 0; p < n; p++) if (runs[p]) m = queueRun(m, p, x0)
       q.len = m
