@@ -14,7 +14,7 @@ import { availableParallelism, loadavg } from 'node:os'
 import { cpSync, existsSync, readdirSync, readFileSync, rmSync } from 'node:fs'
 import { basename, join } from 'node:path'
 import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
-import { ensureBuild, ensureNodeModules, log, migrateAndSeed, startApp, waitForHttp } from './stack.mjs'
+import { ensureBuild, ensureNodeModules, log, migrateAndSeed, signInDemoOwner, startApp, waitForHttp } from './stack.mjs'
 
 const FRAMES = Number(process.env.LW_BENCH_FRAMES ?? 200)
 const PER_REQUEST = Number(process.env.LW_BENCH_PER_REQUEST ?? 4)
@@ -85,18 +85,7 @@ try {
   const base = env.NUXT_PUBLIC_APP_URL
   await waitForHttp(`${base}/login`)
 
-  const { tsImport } = await import('tsx/esm/api')
-  const { DEMO_USERS } = await tsImport('../server/db/demo.ts', import.meta.url)
-  const owner = DEMO_USERS.find((u) => u.role === 'owner')
-  const login = await fetch(new URL('/api/auth/login', base), {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: owner.email, password: owner.password }),
-  })
-  if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`)
-  const cookie = login.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
-  const { json: teams } = await api(base, cookie, 'GET', '/api/teams')
-  const teamId = (teams.teams ?? teams)[0].id
-  const { json: prods } = await api(base, cookie, 'GET', `/api/teams/${teamId}/productions`)
-  const productionId = (prods.productions ?? prods)[0].id
+  const { cookie, productionId } = await signInDemoOwner(base)
   const { json: reel } = await api(base, cookie, 'POST', `/api/productions/${productionId}/reels`, { name: `Bench ${new Date().toISOString()}` })
 
   log(`uploading ${FRAMES} frames (${totalMb.toFixed(0)} MB), ${PER_REQUEST} per request, ${PARALLEL} requests at a time`)

@@ -18,7 +18,7 @@ import { randomBytes } from 'node:crypto'
 import { cpSync, readFileSync, rmSync } from 'node:fs'
 import { basename, join, resolve } from 'node:path'
 import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
-import { ensureNodeModules, log, migrateAndSeed, waitForHttp } from './stack.mjs'
+import { ensureNodeModules, log, migrateAndSeed, signInDemoOwner, waitForHttp } from './stack.mjs'
 
 const FRAMES = Number(process.env.LW_BENCH_FRAMES ?? 100)
 const PER_REQUEST = Number(process.env.LW_BENCH_PER_REQUEST ?? 4)
@@ -47,21 +47,6 @@ async function serve(outputDir, port, env) {
   const base = `http://127.0.0.1:${port}`
   await waitForHttp(`${base}/login`)
   return { base, pid: child.pid, stop: () => new Promise((r) => { child.once('exit', r); child.kill('SIGTERM') }), copy }
-}
-
-async function signIn(base) {
-  const { tsImport } = await import('tsx/esm/api')
-  const { DEMO_USERS } = await tsImport('../server/db/demo.ts', import.meta.url)
-  const owner = DEMO_USERS.find((u) => u.role === 'owner')
-  const login = await fetch(new URL('/api/auth/login', base), {
-    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: owner.email, password: owner.password }),
-  })
-  if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`)
-  const cookie = login.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
-  const get = async (path) => (await fetch(new URL(path, base), { headers: { cookie } })).json()
-  const teams = await get('/api/teams')
-  const prods = await get(`/api/teams/${(teams.teams ?? teams)[0].id}/productions`)
-  return { cookie, productionId: (prods.productions ?? prods)[0].id }
 }
 
 let s3pid = 0
@@ -124,7 +109,7 @@ try {
   s3pid = Number(readFileSync(join(p.runDir, 's3.pid'), 'utf8'))
   dbPid = Number(readFileSync(join(p.runDir, 'mariadbd.pid'), 'utf8'))
   servers = await Promise.all(outputs.map((dir, i) => serve(dir, p.ports.app + i, env)))
-  const sessions = await Promise.all(servers.map((s) => signIn(s.base)))
+  const sessions = await Promise.all(servers.map((s) => signInDemoOwner(s.base)))
   log(`${FRAMES} frames (${mb.toFixed(0)} MB), ${PER_REQUEST} per request, ${PARALLEL} requests at a time, ${ROUNDS} round(s) per app`)
   busy = Array.from({ length: Number(process.env.LW_BENCH_BUSY ?? 0) }, () => spawn(process.execPath, ['-e', 'for (;;);'], { stdio: 'ignore' }))
   if (busy.length) log(`${busy.length} busy loop(s) running meanwhile`)

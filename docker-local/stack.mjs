@@ -123,3 +123,23 @@ export async function waitForHttp(url, ms = 60000) {
   }
   throw new Error(`${url} did not answer within ${ms / 1000} s`)
 }
+
+/**
+ * Signs in as the seeded demo owner (the benchmarks' user) and finds the demo production:
+ * the session cookie and the production's id.
+ */
+export async function signInDemoOwner(base) {
+  const { tsImport } = await import('tsx/esm/api')
+  const { DEMO_USERS } = await tsImport('../server/db/demo.ts', import.meta.url)
+  const owner = DEMO_USERS.find((u) => u.role === 'owner')
+  const login = await fetch(new URL('/api/auth/login', base), {
+    method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: owner.email, password: owner.password }),
+  })
+  if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`)
+  const cookie = login.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ')
+  const get = async (path) => (await fetch(new URL(path, base), { headers: { cookie } })).json()
+  const teams = await get('/api/teams')
+  const prods = await get(`/api/teams/${(teams.teams ?? teams)[0].id}/productions`)
+  return { cookie, productionId: (prods.productions ?? prods)[0].id }
+}
+
