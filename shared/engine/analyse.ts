@@ -69,12 +69,13 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
   }
 
   let dens: Densities | undefined
+  let mg = { width: 0, height: 0 }
   if (opts.keepDensities) {
     const { columns, decimation } = waveformGeometry(width)
     const colOf = new Int32Array(width)
     for (let x = 0; x < width; x++) colOf[x] = Math.floor(x / decimation)
     const size = columns * WAVEFORM_ROWS
-    const mg = maskGeometry(width, height, opts.maskWidth)
+    mg = maskGeometry(width, height, opts.maskWidth)
     const maskCol = new Int32Array(width)
     for (let x = 0; x < width; x++) maskCol[x] = Math.floor(x * mg.width / width)
     const maskRow = new Int32Array(height)
@@ -178,7 +179,7 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
       decimation: dens.decimation, luma: dens.luma, flat: dens.flat, rgb: { r: dens.r, g: dens.g, b: dens.b },
     }
     out.vectorscope = { size: VECTORSCOPE_SIZE, extent: VECTORSCOPE_EXTENT, data: dens.vector }
-    out.rangeMask = { width: dens.maskCol[width - 1]! + 1, height: dens.mask.length / (dens.maskCol[width - 1]! + 1), data: dens.mask }
+    out.rangeMask = { width: mg.width, height: mg.height, data: dens.mask }
   }
   return out
 }

@@ -11,7 +11,6 @@ export const IMAGE_KINDS = ['thumb', 'overlay', 'waveform-luma', 'waveform-flat'
 export type ImageKind = (typeof IMAGE_KINDS)[number]
 
 export const THUMB_WIDTH = 320
-export const OVERLAY_WIDTH = 1280
 
 /**
  * zlib levels, measured on the noisy 1080p benchmark frames (CPU, one libvips thread). The

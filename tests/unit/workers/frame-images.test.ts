@@ -2,9 +2,9 @@
 // sharp: kinds, formats and sizes, and that what is stored is what the engine measured.
 import sharp from 'sharp'
 import { describe, expect, it } from 'vitest'
-import { analyseFrame, builtinSpec, MASK_HIGH, MASK_LOW, PALETTE } from '../../../shared/engine/index'
+import { analyseFrame, builtinSpec, MASK_DEFAULT_WIDTH, MASK_HIGH, MASK_LOW, PALETTE } from '../../../shared/engine/index'
 import type { FrameInput } from '../../../shared/engine/index'
-import { IMAGE_KINDS, OVERLAY_WIDTH, renderFrameImages, THUMB_WIDTH } from '../../../workers/lib/frame-images'
+import { IMAGE_KINDS, renderFrameImages, THUMB_WIDTH } from '../../../workers/lib/frame-images'
 import { solidRgb8, uyvyRow } from '../engine/helpers'
 
 const decode = async (bytes: Uint8Array) => sharp(bytes).raw().toBuffer({ resolveWithObject: true })
@@ -51,7 +51,7 @@ describe('frame images', () => {
     }
     // One mark, at the hot pixel's block: (⌊1000·1280/1920⌋, ⌊532·720/1080⌋) = (666, 354), computed.
     const o = await marks(images.overlay.data)
-    expect([o.width, o.height]).toEqual([OVERLAY_WIDTH, 720])
+    expect([o.width, o.height]).toEqual([MASK_DEFAULT_WIDTH, 720])
     expect(o.marks).toEqual([`666,354:${MASK_HIGH}`])
     // A layer of one mark is a few hundred bytes, not a picture's megabytes.
     expect(images.overlay.data.length).toBeLessThan(20_000)
