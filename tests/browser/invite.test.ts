@@ -114,6 +114,21 @@ describe('inviting a reviewer', () => {
     await screen(inviteePage, '07-productions-as-new-reviewer')
   })
 
+  it('lets the reviewer create a production, naming the field that is missing first', async () => {
+    const name = `Harbour Lights — Ep. ${Date.now() % 1000}`
+    await inviteePage.getByTestId('new-production-open').click()
+    await inviteePage.getByTestId('new-production-submit').click()
+    // ProductionBody's own message (shared/utils/validation.ts), shown beside the field.
+    await expect.poll(() => inviteePage.getByTestId('new-production-form').innerText()).toContain('Enter a production name')
+    await inviteePage.getByTestId('new-production-name').fill(name)
+    await inviteePage.getByTestId('new-production-client').fill('Coastline Pictures')
+    await inviteePage.getByTestId('new-production-submit').click()
+    await expect.poll(() => inviteePage.getByTestId('production-created').innerText()).toContain(`“${name}” was created.`)
+    const row = inviteePage.getByTestId('production-row').filter({ hasText: name })
+    await row.waitFor()
+    expect(await row.innerText()).toContain('Coastline Pictures')
+  })
+
   it('opens the production and shows its (still empty) reels', async () => {
     await inviteePage.getByTestId('production-row').filter({ hasText: DEMO_PRODUCTION.name }).getByTestId('production-link').click()
     await inviteePage.waitForURL((u) => /^\/productions\/\d+$/.test(u.pathname))
