@@ -74,7 +74,25 @@ export function fieldErrors(error: ZodError): Record<string, string> {
   return out
 }
 
-/** Only same-site paths, so a crafted ?redirect= cannot send someone elsewhere. */
+/** Any origin will do: only whether a value stays on it matters. */
+const PROBE_ORIGIN = 'http://linewise.invalid'
+
+/**
+ * Only same-site paths, so a crafted ?redirect= cannot send someone elsewhere. The value is
+ * resolved the way a browser would resolve it (which drops tabs and line breaks, turns `\`
+ * into `/` and collapses `/./`), and kept only if it stays on this origin and does not start
+ * with `//` afterwards; what is returned is that normalised path, never the raw value.
+ */
 export function safeRedirect(value: unknown, fallback = '/'): string {
-  return typeof value === 'string' && value.startsWith('/') && !value.startsWith('//') && !value.startsWith('/\\') ? value : fallback
+  if (typeof value !== 'string' || !value.startsWith('/') || value.length > 2000) return fallback
+  // eslint-disable-next-line no-control-regex
+  if (/[\u0000-\u001f\u007f\\]/.test(value)) return fallback
+  let url: URL
+  try {
+    url = new URL(value, PROBE_ORIGIN)
+  } catch {
+    return fallback
+  }
+  if (url.origin !== PROBE_ORIGIN || url.pathname.startsWith('//')) return fallback
+  return url.pathname + url.search + url.hash
 }

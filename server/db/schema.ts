@@ -140,6 +140,10 @@ export const uploads = mysqlTable('uploads', {
   multipartId: varchar('multipart_id', { length: 255 }),
   expiresAt: datetime('expires_at', { mode: 'date' }).notNull(),
   completedAt: datetime('completed_at', { mode: 'date' }),
+  /** Set while one request checks the stored file, so parallel completions wait for it instead of racing. */
+  claimedAt: datetime('claimed_at', { mode: 'date', fsp: 3 }),
+  /** The frame this upload became (the same answer for every later completion of it). */
+  frameId: ref('frame_id'),
   ...timestamps,
 }, (t) => [index('uploads_reel_idx').on(t.reelId)])
 
@@ -167,6 +171,8 @@ export const frames = mysqlTable('frames', {
   uniqueIndex('frames_reel_sha_uq').on(t.reelId, t.sha256),
   uniqueIndex('frames_reel_seq_uq').on(t.reelId, t.seq),
   index('frames_status_idx').on(t.status, t.queuedAt),
+  // An object is deleted only when no frame points at it: that check is one indexed lookup.
+  index('frames_object_key_idx').on(t.objectKey),
 ])
 
 /** One analysis per frame (the unique key makes a second run of the same job a no-op). */
@@ -240,3 +246,35 @@ export const signoffs = mysqlTable('signoffs', {
   reopenReason: varchar('reopen_reason', { length: 1000 }),
   ...timestamps,
 }, (t) => [index('signoffs_reel_idx').on(t.reelId, t.signedAt), index('signoffs_team_idx').on(t.teamId)])
+
+/**
+ * One row per signed-in browser. The sealed cookie carries a random id whose SHA-256 is
+ * looked up here on every request, so sign-out, a password reset or "sign out everywhere"
+ * ends a session at once instead of when its cookie expires.
+ */
+export const sessions = mysqlTable('sessions', {
+  id: id(),
+  userId: ref('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  tokenHash: char('token_hash', { length: 64 }).notNull(),
+  userAgent: varchar('user_agent', { length: 255 }).notNull().default(''),
+  expiresAt: datetime('expires_at', { mode: 'date' }).notNull(),
+  revokedAt: datetime('revoked_at', { mode: 'date', fsp: 3 }),
+  ...timestamps,
+}, (t) => [uniqueIndex('sessions_token_uq').on(t.tokenHash), index('sessions_user_idx').on(t.userId, t.revokedAt)])
+
+/**
+ * A personal API token for scripts: scoped to one team, with a role no wider than its
+ * maker's. Only the SHA-256 of the token is stored; the token itself is shown once.
+ */
+export const apiTokens = mysqlTable('api_tokens', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  userId: ref('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  name: varchar('name', { length: 80 }).notNull(),
+  role: mysqlEnum('role', ROLES).notNull(),
+  tokenHash: char('token_hash', { length: 64 }).notNull(),
+  expiresAt: datetime('expires_at', { mode: 'date' }),
+  lastUsedAt: datetime('last_used_at', { mode: 'date' }),
+  revokedAt: datetime('revoked_at', { mode: 'date', fsp: 3 }),
+  ...timestamps,
+}, (t) => [uniqueIndex('api_tokens_token_uq').on(t.tokenHash), index('api_tokens_team_user_idx').on(t.teamId, t.userId)])

@@ -5,6 +5,7 @@ import { createHash } from 'node:crypto'
 import sharp from 'sharp'
 import { v210Stride } from '../../shared/engine/decode'
 import { UPLOAD_LIMITS, type FrameFormat } from '../../shared/utils/uploads'
+import { stripInvisible } from '../../shared/utils/text'
 
 /** A refused upload: `status` for HTTP, `reason` for the person who sent it. */
 export class IntakeError extends Error {
@@ -15,7 +16,9 @@ export class IntakeError extends Error {
 }
 
 /** Refuses names that try to steer a path or hide characters; the name is only ever a label. */
-export function checkFileName(name: string): string {
+export function checkFileName(sent: string): string {
+  // Bidi overrides and zero-width characters would make the name read differently on screen and in the sheet.
+  const name = stripInvisible(sent)
   if (name.length === 0) throw new IntakeError(400, 'The file has no name')
   if (name.includes('\0')) throw new IntakeError(400, 'The file name contains a NUL character')
   // eslint-disable-next-line no-control-regex

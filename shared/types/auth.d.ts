@@ -4,5 +4,9 @@ declare module '#auth-utils' {
     email: string
     name: string
   }
+  interface SecureSessionData {
+    /** Random id of the server-side session row (stored there as its SHA-256). */
+    sid?: string
+  }
 }
 export {}

@@ -1,4 +1,6 @@
 import { z } from 'zod'
+import { cleanName } from './text'
+import { nameField } from './validation'
 
 export const FRAME_FORMATS = ['png', 'jpeg', 'tiff', 'webp', 'uyvy', 'v210'] as const
 export type FrameFormat = (typeof FRAME_FORMATS)[number]
@@ -33,13 +35,20 @@ export const CompleteUploadBody = z.object({
   parts: z.array(z.object({ partNumber: z.number().int().min(1).max(10000), etag: z.string().min(1).max(200) })).max(10000).optional(),
 })
 
+const ReelFields = {
+  name: nameField(160, 'Enter a reel name'),
+  sourceLabel: z.string().transform(cleanName).pipe(z.string().max(120, 'Use at most 120 characters')),
+  sourceRange: z.enum(['full', 'studio']),
+  matrix: z.enum(['601', '709']),
+}
 export const ReelBody = z.object({
-  name: z.string().trim().min(1, 'Enter a reel name').max(160),
-  sourceLabel: z.string().trim().max(120).default(''),
-  sourceRange: z.enum(['full', 'studio']).default('full'),
-  matrix: z.enum(['601', '709']).default('601'),
+  ...ReelFields,
+  sourceLabel: ReelFields.sourceLabel.default(''),
+  sourceRange: ReelFields.sourceRange.default('full'),
+  matrix: ReelFields.matrix.default('601'),
 })
-export const ReelPatchBody = ReelBody.partial()
+/** Built from the fields without their defaults: a partial update changes only what was sent. */
+export const ReelPatchBody = z.object(ReelFields).partial().refine((v) => Object.keys(v).length > 0, 'Send at least one field to change')
 
 export const FRAME_STATUSES = ['queued', 'analysing', 'done', 'failed'] as const
 export type FrameStatus = (typeof FRAME_STATUSES)[number]

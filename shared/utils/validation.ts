@@ -1,10 +1,13 @@
 import { z } from 'zod'
 import { ROLES } from './roles'
+import { cleanName } from './text'
 
 // Schemas shared by the forms in app/ and the routes in server/, so both agree on what is valid.
 export const EmailSchema = z.string().trim().toLowerCase().pipe(z.email({ message: 'Enter a valid e-mail address' })).pipe(z.string().max(254))
 export const PasswordSchema = z.string().min(10, 'Use at least 10 characters').max(200, 'Use at most 200 characters')
-export const NameSchema = z.string().trim().min(1, 'Enter a name').max(120, 'Use at most 120 characters')
+/** A one-line name as people see it: NFC, no control, bidi-override or zero-width characters. */
+export const nameField = (max: number, empty = 'Enter a name') => z.string().transform(cleanName).pipe(z.string().min(1, empty).max(max, `Use at most ${max} characters`))
+export const NameSchema = nameField(120)
 export const RoleSchema = z.enum(ROLES)
 export const IdSchema = z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER)
 export const TokenSchema = z.string().regex(/^[A-Za-z0-9_-]{32,64}$/, 'This link is not valid')
@@ -16,8 +19,8 @@ export const ResetRequestBody = z.object({ email: EmailSchema })
 export const ResetConfirmBody = z.object({ token: TokenSchema, password: PasswordSchema })
 export const RoleChangeBody = z.object({ role: RoleSchema })
 export const ProductionBody = z.object({
-  name: z.string().trim().min(1, 'Enter a production name').max(160, 'Use at most 160 characters'),
-  client: z.string().trim().max(160, 'Use at most 160 characters').default(''),
+  name: nameField(160, 'Enter a production name'),
+  client: z.string().transform(cleanName).pipe(z.string().max(160, 'Use at most 160 characters')).default(''),
 })
 export const TeamParams = z.object({ teamId: IdSchema })
 export const IdParams = z.object({ id: IdSchema })

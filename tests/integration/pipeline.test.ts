@@ -154,8 +154,12 @@ describe('upload → analysis', () => {
     expect(cb.status, JSON.stringify(cb.body)).toBe(201)
     expect(cl.status).toBe(415)
     expect(cl.body.reason).toMatch(/text file/)
-    // Confirming twice does not make a second frame.
-    expect((await editor.post(`/api/reels/${reelId}/uploads/${s.uploadId}/complete`, {})).status).toBe(404)
+    // Confirming twice does not make a second frame: the answer is the same frame again.
+    const again = await editor.post(`/api/reels/${reelId}/uploads/${s.uploadId}/complete`, {})
+    expect(again.status).toBe(200)
+    expect(again.body).toMatchObject({ ok: true, frameId: cs.body.frameId, duplicate: false })
+    // A refused upload stays refused.
+    expect((await editor.post(`/api/reels/${reelId}/uploads/${l.uploadId}/complete`, {})).status).toBe(404)
     const [fs, fb] = await waitForFrames([cs.body.frameId, cb.body.frameId], 120_000)
     expect(fs.frame.status).toBe('done')
     expect(fb.frame.status).toBe('done')

@@ -12,7 +12,7 @@ export default defineEventHandler(async (event) => {
     throw createError({ statusCode: 401, statusMessage: 'E-mail or password is wrong' })
   }
   await clearSigninFailures(event, email)
-  await setUserSession(event, { user: { id: user.id, email: user.email, name: user.name }, loggedInAt: Date.now() })
+  await startSession(event, user)
   return { id: user.id, email: user.email, name: user.name }
 })
 

@@ -9,13 +9,13 @@ export default defineEventHandler(async (event) => {
   const { token } = await getValidatedRouterParams(event, Params.parse)
   const { inv, teamName } = await findInvitation(useDb(), token)
   const [existing] = await useDb().select({ id: tables.users.id }).from(tables.users).where(eq(tables.users.email, inv.email)).limit(1)
-  const session = await getUserSession(event)
+  const signedIn = await sessionUser(event)
   return {
     teamName,
     email: inv.email,
     role: inv.role,
     expiresAt: inv.expiresAt,
     hasAccount: !!existing,
-    signedInAs: session.user?.email ?? null,
+    signedInAs: signedIn?.email ?? null,
   }
 })

@@ -7,13 +7,13 @@ import { AcceptInvitationBody } from '../../../shared/utils/validation'
  */
 export default defineEventHandler(async (event) => {
   const { token, name, password } = await readValidatedBody(event, AcceptInvitationBody.parse)
-  const session = await getUserSession(event)
+  const signedIn = await sessionUser(event)
   const passwordHash = password ? await hashPassword(password) : null
   const result = await useDb().transaction(async (tx) => {
     const { inv } = await findInvitation(tx, token, true)
     let [user] = await tx.select().from(tables.users).where(eq(tables.users.email, inv.email)).limit(1)
     if (user) {
-      if (session.user?.id !== user.id) {
+      if (signedIn?.id !== user.id) {
         throw createError({ statusCode: 409, statusMessage: `An account for ${inv.email} exists: sign in as ${inv.email}, then open the link again.` })
       }
     } else {
@@ -27,6 +27,6 @@ export default defineEventHandler(async (event) => {
     await audit({ teamId: inv.teamId, actorId: user!.id, action: 'invitation.accepted', subjectType: 'invitation', subjectId: inv.id, details: { role: inv.role } }, tx)
     return { user: user!, teamId: inv.teamId, role: inv.role }
   })
-  await setUserSession(event, { user: { id: result.user.id, email: result.user.email, name: result.user.name }, loggedInAt: Date.now() })
+  await startSession(event, result.user)
   return { teamId: result.teamId, role: result.role }
 })

@@ -1,11 +1,12 @@
-import { eq } from 'drizzle-orm'
+import { and, eq } from 'drizzle-orm'
 
 export default defineEventHandler(async (event) => {
-  const user = await requireUser(event)
+  const { user, token } = await requireCaller(event)
   return useDb()
     .select({ id: tables.teams.id, name: tables.teams.name, role: tables.memberships.role })
     .from(tables.memberships)
     .innerJoin(tables.teams, eq(tables.teams.id, tables.memberships.teamId))
-    .where(eq(tables.memberships.userId, user.id))
+    // An API token sees only its own team.
+    .where(token ? and(eq(tables.memberships.userId, user.id), eq(tables.memberships.teamId, token.teamId)) : eq(tables.memberships.userId, user.id))
     .orderBy(tables.teams.name)
 })

@@ -14,11 +14,13 @@ export default defineEventHandler(async (event) => {
     // Spend every open link of this user, not only this one.
     await tx.update(tables.passwordResets).set({ usedAt: now }).where(and(eq(tables.passwordResets.userId, reset.userId), isNull(tables.passwordResets.usedAt)))
     await tx.update(tables.users).set({ passwordHash }).where(eq(tables.users.id, reset.userId))
+    // Whoever knew the old password may hold a session: every one of them ends here.
+    await endUserSessions(reset.userId, tx)
     const [u] = await tx.select().from(tables.users).where(eq(tables.users.id, reset.userId))
     await audit({ teamId: null, actorId: reset.userId, action: 'user.password_reset', subjectType: 'user', subjectId: reset.userId }, tx)
     return u
   })
   if (!user) throw createError({ statusCode: 410, statusMessage: 'This reset link has expired or was already used. Ask for a new one.' })
-  await setUserSession(event, { user: { id: user.id, email: user.email, name: user.name }, loggedInAt: Date.now() })
+  await startSession(event, user)
   return { id: user.id, email: user.email, name: user.name }
 })
