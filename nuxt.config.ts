@@ -2,7 +2,7 @@
 export default defineNuxtConfig({
   compatibilityDate: '2025-07-15',
   devtools: { enabled: false },
-  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils'],
+  modules: ['@pinia/nuxt', '@nuxtjs/tailwindcss', 'nuxt-auth-utils', 'nuxt-security'],
   css: ['@fontsource/inter/400.css', '@fontsource/inter/500.css', '@fontsource/inter/600.css', '@fontsource/roboto-mono/400.css', '@fontsource/roboto-mono/500.css'],
   tailwindcss: { cssPath: '~/assets/css/tailwind.css' },
   app: {
@@ -42,6 +42,50 @@ export default defineNuxtConfig({
   },
   nitro: {
     experimental: { tasks: false },
+  },
+  // Response headers on every page and API answer (nuxt-security 2.5.1). The Content-Security-
+  // Policy gives Nuxt's own inline script a per-response nonce; the S3 endpoint that presigned
+  // uploads go to is added to connect-src at start from NUXT_S3_ENDPOINT
+  // (server/plugins/csp-storage.ts). Body size, Origin and content-type checks are ours
+  // (server/middleware/01.request-guard.ts): the module's limiter trusts Content-Length and
+  // would refuse uploads, and its rate limiter and XSS validator are left off (sign-in has
+  // its own throttling; output is encoded where it is written).
+  security: {
+    nonce: true,
+    sri: true,
+    hidePoweredBy: true,
+    removeLoggers: false,
+    rateLimiter: false,
+    requestSizeLimiter: false,
+    xssValidator: false,
+    corsHandler: false,
+    allowedMethodsRestricter: false,
+    csrf: false,
+    headers: {
+      // Off: nothing here needs cross-origin isolation (no SharedArrayBuffer).
+      crossOriginEmbedderPolicy: false,
+      crossOriginResourcePolicy: 'same-origin',
+      crossOriginOpenerPolicy: 'same-origin',
+      referrerPolicy: 'same-origin',
+      xFrameOptions: 'DENY',
+      contentSecurityPolicy: {
+        'default-src': ["'self'"],
+        'base-uri': ["'none'"],
+        'connect-src': ["'self'"],
+        'font-src': ["'self'", 'data:'],
+        'form-action': ["'self'"],
+        'frame-ancestors': ["'none'"],
+        'img-src': ["'self'", 'data:', 'blob:'],
+        'object-src': ["'none'"],
+        'script-src-attr': ["'none'"],
+        // Vue and ECharts set style attributes; no script runs from them.
+        'style-src': ["'self'", "'unsafe-inline'"],
+        'script-src': ["'self'", "'strict-dynamic'", "'nonce-{{nonce}}'"],
+        'worker-src': ["'self'", 'blob:'],
+        // Off: the local stack serves plain http; a deployment behind TLS gets HSTS instead.
+        'upgrade-insecure-requests': false,
+      },
+    },
   },
   typescript: { strict: true },
 })

@@ -22,6 +22,14 @@ export class MultipartError extends Error {
   }
 }
 
+/** The body went past the request's byte cap (declared or not): reading stopped there. */
+export class BodyTooLargeError extends MultipartError {
+  constructor(public limit: number, files: number) {
+    super(`The request is larger than ${limit / 2 ** 20} MiB`, files)
+    this.name = 'BodyTooLargeError'
+  }
+}
+
 export const isMultipart = (contentType: string | undefined) => /^multipart\/form-data\s*;/i.test(contentType ?? '')
 
 /**
@@ -34,7 +42,7 @@ export const isMultipart = (contentType: string | undefined) => /^multipart\/for
  * request is read and dropped, so the connection stays usable for the answer and the next
  * request. Text fields are skipped.
  */
-export function readMultipart(req: IncomingMessage, onFile: (part: FilePart) => Promise<void>): Promise<void> {
+export function readMultipart(req: IncomingMessage, onFile: (part: FilePart) => Promise<void>, opts: { maxBytes?: number } = {}): Promise<void> {
   return new Promise((resolve, reject) => {
     let parser: busboy.Busboy
     try {
@@ -61,8 +69,23 @@ export function readMultipart(req: IncomingMessage, onFile: (part: FilePart) => 
       // some malformed bodies by an 'error' event alone.
       parser.destroy()
       // Read the rest of the body and drop it: answering while it is still unread would
-      // leave it in the socket for the next request to trip over.
-      req.resume()
+      // leave it in the socket for the next request to trip over. Past the byte cap the
+      // rest is not read at all: the caller answers and closes the connection.
+      if (e instanceof BodyTooLargeError) req.pause()
+      else req.resume()
+    }
+    // A chunked body declares no length: it is held to the same cap by counting what arrives.
+    if (opts.maxBytes) {
+      const max = opts.maxBytes
+      let received = 0
+      const count = (chunk: Buffer) => {
+        received += chunk.length
+        if (received > max) {
+          req.off('data', count)
+          fail(new BodyTooLargeError(max, files))
+        }
+      }
+      req.on('data', count)
     }
     parser.on('file', (field, stream, info) => {
       // A part with a file name, or one sent as application/octet-stream without one (as

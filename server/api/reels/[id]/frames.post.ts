@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { IdParams } from '../../../../shared/utils/validation'
 import { FRAME_FORMATS, UPLOAD_LIMITS, formatFromName, type FrameFormat } from '../../../../shared/utils/uploads'
 import { IntakeError, receiveFile } from '../../../lib/intake'
-import { MultipartError, isMultipart, readMultipart } from '../../../lib/multipart'
+import { BodyTooLargeError, MultipartError, isMultipart, readMultipart } from '../../../lib/multipart'
 
 const Query = z.object({
   /** For raw Y'CbCr files: their format and size, which the bytes cannot tell. */
@@ -10,6 +10,9 @@ const Query = z.object({
   width: z.coerce.number().int().min(2).max(16384).optional(),
   height: z.coerce.number().int().min(1).max(16384).optional(),
 })
+
+/** The most one request may carry, declared (Content-Length) or chunked. */
+const MAX_REQUEST_BYTES = UPLOAD_LIMITS.maxBytes * 4
 
 const NOT_MULTIPART = 'Send the files as multipart/form-data fields with a file name'
 
@@ -26,9 +29,13 @@ export default defineEventHandler(async (event) => {
   await assertReelOpen(reel.id)
   const q = await getValidatedQuery(event, Query.parse)
   const length = Number(getRequestHeader(event, 'content-length') ?? 0)
-  if (length > UPLOAD_LIMITS.maxBytes * 4) {
-    throw createError({ statusCode: 413, statusMessage: `A request may carry at most ${UPLOAD_LIMITS.maxBytes * 4 / 2 ** 20} MiB; send fewer files at a time` })
+  const tooLarge = (files?: IntakeResult[]) => {
+    // The rest of the body is not read: the connection closes after this answer.
+    setResponseHeader(event, 'Connection', 'close')
+    event.node.res.once('finish', () => event.node.req.socket?.destroy())
+    return createError({ statusCode: 413, statusMessage: `A request may carry at most ${MAX_REQUEST_BYTES / 2 ** 20} MiB; send fewer files at a time`, data: files ? { files } : undefined })
   }
+  if (length > MAX_REQUEST_BYTES) throw tooLarge()
   if (!isMultipart(getRequestHeader(event, 'content-type'))) throw createError({ statusCode: 400, statusMessage: NOT_MULTIPART })
 
   const results: Promise<IntakeResult>[] = []
@@ -61,8 +68,13 @@ export default defineEventHandler(async (event) => {
       results.push(stored)
       // At most this file waits while the previous one is being stored.
       await previous
-    })
+    }, { maxBytes: MAX_REQUEST_BYTES })
   } catch (e) {
+    if (e instanceof BodyTooLargeError) {
+      // Files that arrived whole before the cap are kept and queued; the answer says what happened to each.
+      const settled = await Promise.allSettled(results)
+      throw tooLarge(settled.flatMap((r) => (r.status === 'fulfilled' ? [r.value] : [])))
+    }
     if (!(e instanceof MultipartError)) throw e
     // Files that arrived whole before the body broke off are answered; the one it broke
     // in is refused with its reason (receiveFile).
