@@ -6,6 +6,7 @@ import { createHash, randomBytes } from 'node:crypto'
 import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs'
 import { join, relative } from 'node:path'
 import { ROOT } from './services.mjs'
+import { supervise } from './supervise.mjs'
 
 export function log(msg) {
   console.log(`[linewise] ${msg}`)
@@ -77,17 +78,27 @@ export function migrateAndSeed(env) {
  * `<runDir>/app-*.pid`, so a fault test may kill the worker and start another in its place
  * (tests/support/stack.ts) and stop() still ends whatever is listed there.
  */
-export function startApp(env, { port, runDir, quiet = false, onExit, outputDir = join(ROOT, '.output') } = {}) {
+export function startApp(env, { port, runDir, quiet = false, onExit, outputDir = join(ROOT, '.output'), restart = false } = {}) {
   const children = []
+  const supervisors = []
   const stdio = quiet ? ['ignore', 'ignore', 'inherit'] : 'inherit'
-  const add = (name, args, extraEnv = {}) => {
+  const pidFile = (name, pid) => join(runDir, `app-${name}-${pid}.pid`)
+  const spawnOne = (name, args, extraEnv) => {
     const child = spawn(process.execPath, args, { cwd: ROOT, env: { ...env, ...extraEnv }, stdio })
     child.on('exit', (code, signal) => {
       child.exited = true
+      if (runDir && restart) rmSync(pidFile(name, child.pid), { force: true })
       onExit?.(name, code, signal)
     })
     children.push(child)
-    if (runDir) writeFileSync(join(runDir, `app-${name}-${child.pid}.pid`), String(child.pid))
+    if (runDir) writeFileSync(pidFile(name, child.pid), String(child.pid))
+    return child
+  }
+  const add = (name, args, extraEnv = {}) => {
+    // `npm start` keeps the worker alive: a worker that dies (killed, out of memory on a huge
+    // file) is started again with backoff while the app goes on serving; its jobs are retried.
+    if (restart && name === 'worker') supervisors.push(supervise(name, () => spawnOne(name, args, extraEnv), { log }))
+    else spawnOne(name, args, extraEnv)
   }
   // LW_SERVER_NODE_ARGS / LW_WORKER_NODE_ARGS, e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof", to
   // see where a benchmark's time goes (Node refuses --cpu-prof in NODE_OPTIONS).
@@ -95,6 +106,7 @@ export function startApp(env, { port, runDir, quiet = false, onExit, outputDir =
   add('server', [...nodeArgs('LW_SERVER_NODE_ARGS'), join(outputDir, 'server/index.mjs')], { PORT: String(port), HOST: '127.0.0.1', NITRO_HOST: '127.0.0.1', NITRO_PORT: String(port) })
   add('worker', [...nodeArgs('LW_WORKER_NODE_ARGS'), '--import', 'tsx', join(ROOT, 'workers/index.ts')])
   return async function stop() {
+    await Promise.all(supervisors.map((s) => s.stop()))
     if (runDir) {
       for (const f of readdirSync(runDir).filter((f) => f.startsWith('app-') && f.endsWith('.pid'))) {
         const pid = Number(readFileSync(join(runDir, f), 'utf8'))

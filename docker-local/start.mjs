@@ -25,10 +25,11 @@ try {
   migrateAndSeed(env)
   ensureBuild()
   stopApp = startApp(env, {
-    port: p.ports.app, runDir: p.runDir,
+    port: p.ports.app, runDir: p.runDir, restart: true,
+    // The worker is restarted by startApp; the web server is the app itself, so without it everything stops.
     onExit: (name, code, signal) => {
-      if (!stopping) {
-        log(`${name} stopped unexpectedly (${signal ?? `exit ${code}`}); shutting down`)
+      if (!stopping && name === 'server') {
+        log(`server stopped unexpectedly (${signal ?? `exit ${code}`}); shutting down`)
         void shutdown(1)
       }
     },

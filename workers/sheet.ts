@@ -9,7 +9,7 @@ import type { SheetJob } from '../shared/utils/queues'
 import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
 import { loadSheetContext, sheetKeys } from '../server/lib/sheet'
-import { CSV_COLUMNS, csvRecord, summarise, type SheetRow } from '../server/lib/sheet-rules'
+import { CSV_COLUMNS, CSV_NUMBER_COLUMNS, csvRecord, summarise, type SheetRow } from '../server/lib/sheet-rules'
 import { keys, type Storage } from '../server/lib/storage'
 import { renderSheetPdf, type ScopeKind } from './sheet-pdf'
 
@@ -26,7 +26,11 @@ export interface SheetJobLike {
 
 /** The CSV beside the PDF: a header row, then one row per frame in index order (RFC 4180, UTF-8 with BOM for spreadsheets). */
 export function sheetCsv(rows: SheetRow[]): string {
-  return `\uFEFF${stringify(rows.map(csvRecord), { header: true, columns: [...CSV_COLUMNS], record_delimiter: 'windows' })}`
+  return `\uFEFF${stringify(rows.map(csvRecord), {
+    header: true, columns: [...CSV_COLUMNS], record_delimiter: 'windows',
+    // Every text cell in quotes, so no delimiter or line break inside one is ever read as a new cell.
+    cast: { string: (value, ctx) => (ctx.header || CSV_NUMBER_COLUMNS.has(String(ctx.column)) ? value : { value, quoted: true, quoted_empty: true }) },
+  })}`
 }
 
 export async function processSheet(job: SheetJobLike, deps: SheetDeps): Promise<{ status: 'done' | 'skipped' }> {

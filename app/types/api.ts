@@ -35,3 +35,4 @@ export interface FrameListRow {
 export interface FrameListPage { page: number; pageSize: number; total: number; frames: FrameListRow[] }
 export interface MemberRow { userId: number; name: string; email: string; role: Role; since: string }
 export interface InvitationRow { id: number; email: string; role: Role; expiresAt: string; createdAt: string }
+export interface ApiTokenRow { id: number; name: string; role: Role; userId: number; userName: string; createdAt: string; expiresAt: string | null; lastUsedAt: string | null; revokedAt: string | null; mine: boolean }

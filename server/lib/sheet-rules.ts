@@ -166,10 +166,15 @@ const round = (v: number | null, digits: number) => (v === null ? '' : (Math.rou
 /**
  * A spreadsheet reads a cell that starts with =, +, - or @ as a formula; a file name or a
  * note must never run as one on the producer's machine, so such text gets a leading quote.
+ * The same goes for the same characters after a `;` or `,`: a spreadsheet that splits the
+ * file on another delimiter than ours would start a new cell there.
  */
 export function safeText(s: string): string {
-  return /^[=+\-@\t\r]/.test(s) ? `'${s}` : s
+  return (/^[=+\-@\t\r]/.test(s) ? `'${s}` : s).replace(/([;,]\s*)([=+\-@\t\r])/g, "$1'$2")
 }
+
+/** Columns that hold numbers; every other cell is text and is always written in quotes. */
+export const CSV_NUMBER_COLUMNS: ReadonlySet<string> = new Set(['index', 'luma_min_ire', 'luma_max_ire', 'composite_max_ire', 'out_of_range_pct', 'spec_version'])
 
 export type CsvRecord = Record<(typeof CSV_COLUMNS)[number], string>
 

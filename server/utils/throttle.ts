@@ -57,3 +57,39 @@ export async function recordSigninFailure(event: H3Event, email: string) {
 export async function clearSigninFailures(event: H3Event, email: string) {
   await useLimiters().account.delete(keys(event, email).account).catch(() => {})
 }
+
+// Password-reset requests: 3 per e-mail address an hour (whether or not it has an account,
+// so the answer says nothing about that) and 20 per network address an hour.
+export const RESET_LIMITS = { perAccount: 3, perAddress: 20, windowS: 60 * 60 }
+
+let resetLimiters: { account: RateLimiterRedis; address: RateLimiterRedis } | undefined
+
+function useResetLimiters() {
+  resetLimiters ??= {
+    account: new RateLimiterRedis({
+      storeClient: useRedis(), keyPrefix: 'lw:reset:acct', points: RESET_LIMITS.perAccount, duration: RESET_LIMITS.windowS,
+      insuranceLimiter: new RateLimiterMemory({ points: RESET_LIMITS.perAccount, duration: RESET_LIMITS.windowS }),
+    }),
+    address: new RateLimiterRedis({
+      storeClient: useRedis(), keyPrefix: 'lw:reset:addr', points: RESET_LIMITS.perAddress, duration: RESET_LIMITS.windowS,
+      insuranceLimiter: new RateLimiterMemory({ points: RESET_LIMITS.perAddress, duration: RESET_LIMITS.windowS }),
+    }),
+  }
+  return resetLimiters
+}
+
+/** Counts one reset request for the e-mail address and the network address; 429 once either is used up. */
+export async function consumeResetRequest(event: H3Event, email: string) {
+  const l = useResetLimiters()
+  const ip = getRequestIP(event, { xForwardedFor: false }) ?? 'unknown'
+  for (const [limiter, key] of [[l.address, ip], [l.account, email]] as const) {
+    try {
+      await limiter.consume(key)
+    } catch (e) {
+      if (!(e instanceof RateLimiterRes)) throw e
+      const seconds = Math.max(1, Math.ceil(e.msBeforeNext / 1000))
+      setResponseHeader(event, 'Retry-After', seconds)
+      throw createError({ statusCode: 429, statusMessage: `Too many reset requests. Try again in ${Math.ceil(seconds / 60)} minute(s).`, data: { retryAfter: seconds } })
+    }
+  }
+}

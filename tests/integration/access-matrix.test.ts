@@ -1,5 +1,7 @@
-// Every protected route × every role × a member of another team. A route added to
-// server/api without a row here fails the first test, so the matrix grows with the API.
+// Every protected route × every role (signed in, and as a script with an API token of that
+// role) × a member of another team × callers whose access has ended (signed out, password
+// reset, removed from the team, token revoked). A route added to server/api without a row
+// here fails the first test, so the matrix grows with the API.
 import { readdirSync, statSync } from 'node:fs'
 import { join, relative } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -8,9 +10,10 @@ import * as t from '../../server/db/schema'
 import { CAN, ROLES, type Permission, type Role } from '../../shared/utils/roles'
 import { Client } from '../support/api'
 import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
+import { linkIn, waitForMail } from '../support/mail'
 import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number }
+type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; tokenId: number }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'
   /** The allowed answer may be a 404 about the target's state (checked to carry its own message). */
@@ -20,6 +23,8 @@ interface Route {
   body?: (c: Ctx) => unknown
   /** null: any signed-in user, no team involved. */
   permission: Permission | null
+  /** Needs a browser session: an API token gets 403 (tokens cannot mint tokens or end sessions). */
+  sessionOnly?: boolean
 }
 
 const ROUTES: Route[] = [
@@ -58,6 +63,14 @@ const ROUTES: Route[] = [
   { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.csv`, permission: 'downloadSheet' },
   { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/signoff`, permission: 'signOff' },
   { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
+  // Sign out everywhere ends the caller's own sessions: run on a throwaway session of the same person (see call()).
+  { method: 'DELETE', file: 'auth/sessions.delete.ts', path: () => '/api/auth/sessions', permission: null, sessionOnly: true },
+  { method: 'DELETE', file: 'teams/[teamId]/members/[userId]/sessions.delete.ts', path: (c) => `/api/teams/${c.teamId}/members/${c.spareUserId}/sessions`, permission: 'manageTeam' },
+  { method: 'GET', file: 'teams/[teamId]/tokens/index.get.ts', path: (c) => `/api/teams/${c.teamId}/tokens`, permission: 'view' },
+  // Every role may make a token of the least role; a token may not make one.
+  { method: 'POST', file: 'teams/[teamId]/tokens/index.post.ts', path: (c) => `/api/teams/${c.teamId}/tokens`, body: () => ({ name: `matrix ${uid()}`, role: 'producer' }), permission: 'view', sessionOnly: true },
+  // The token is the caller's own (made in freshCtx for whoever calls).
+  { method: 'DELETE', file: 'teams/[teamId]/tokens/[id].delete.ts', path: (c) => `/api/teams/${c.teamId}/tokens/${c.tokenId}`, permission: 'view' },
 ]
 
 /** Routes that need no session: the token or the credentials are the proof. */
@@ -78,14 +91,33 @@ let reelId = 0
 let emptyReelId = 0
 let frameId = 0
 let outsider: Awaited<ReturnType<typeof createUser>>
-const clients = new Map<Role | 'outsider', Client>()
+type Caller = Role | 'outsider' | `token:${Role}`
+const clients = new Map<Caller, Client>()
+/** Who each caller is, so a per-call token or session can be made for them. */
+const people = new Map<Caller, { id: number; email: string; password: string }>()
+
+/** An API token of `role` for `userId` in the team, written straight to the database. */
+async function tokenFor(teamId: number, userId: number, role: Role, extra: Partial<typeof t.apiTokens.$inferInsert> = {}) {
+  const { createHash, randomBytes } = await import('node:crypto')
+  const token = `lwt_${randomBytes(32).toString('base64url')}`
+  const id = firstId(await db().insert(t.apiTokens).values({ teamId, userId, name: `matrix ${uid()}`, role, tokenHash: createHash('sha256').update(token).digest('hex'), ...extra }).$returningId())
+  return { id, token }
+}
 
 beforeAll(async () => {
   team = await createTeamWithRoles()
   const other = await createTeamWithRoles()
   outsider = other.users.owner
-  for (const role of ROLES) clients.set(role, await new Client().login(team.users[role].email, team.users[role].password))
+  for (const role of ROLES) {
+    clients.set(role, await new Client().login(team.users[role].email, team.users[role].password))
+    clients.set(`token:${role}`, new Client((await tokenFor(team.teamId, team.users[role].id, role)).token))
+    people.set(role, team.users[role])
+    people.set(`token:${role}`, team.users[role])
+  }
   clients.set('outsider', await new Client().login(outsider.email, outsider.password))
+  people.set('outsider', outsider)
+  for (const e of ENDED) e.client = await e.make()
+  removed = await removedMember()
   const owner = clients.get('owner')!
   reelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel' })).body.id
   emptyReelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel without frames' })).body.id
@@ -99,18 +131,75 @@ beforeAll(async () => {
 afterAll(closeDb)
 
 /** Fresh targets for each call, so that a DELETE in one case cannot starve the next. */
-async function freshCtx(): Promise<Ctx> {
+async function freshCtx(caller?: { id: number }): Promise<Ctx> {
   const spare = await createUser('spare')
   await addMember(team.teamId, spare.id, 'editor')
   const invitationId = firstId(await db().insert(t.invitations).values({
     teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
   }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
-  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId }
+  const tokenId = (await tokenFor(team.teamId, caller?.id ?? team.users.owner.id, 'producer')).id
+  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, tokenId }
 }
 
-async function call(client: Client, r: Route, c: Ctx) {
+async function call(client: Client, r: Route, c: Ctx, who?: { email: string; password: string }) {
+  // Sign-out-everywhere would end the shared clients' sessions: it runs on a new session of the same person.
+  if (r.file === 'auth/sessions.delete.ts' && who && !client.bearer) client = await new Client().login(who.email, who.password)
   return client.request(r.method, r.path(c), r.body?.(c))
+}
+
+/**
+ * The ways a caller's access ends; each must answer as if there were no caller at all.
+ * Made once (beforeAll): an ended session stays ended for every route.
+ */
+const ENDED: { label: string; status: number; make: () => Promise<Client>; client?: Client }[] = [
+  {
+    label: 'V3.3.1 a cookie replayed after sign-out', status: 401, make: async () => {
+      const u = await createUser('signed-out')
+      await addMember(team.teamId, u.id, 'owner')
+      const c = await new Client().login(u.email, u.password)
+      const copy = new Client()
+      ;(copy as unknown as { cookies: Map<string, string> }).cookies = new Map((c as unknown as { cookies: Map<string, string> }).cookies)
+      await c.post('/api/auth/logout')
+      return copy
+    },
+  },
+  {
+    label: 'V3.3.3 a session from before a password reset', status: 401, make: async () => {
+      const u = await createUser('was-reset')
+      await addMember(team.teamId, u.id, 'owner')
+      const c = await new Client().login(u.email, u.password)
+      await new Client().post('/api/auth/password-reset/request', { email: u.email })
+      const token = new URL(linkIn(await waitForMail(u.email, /Reset your Linewise password/), '/reset-password?token=')).searchParams.get('token')!
+      expect((await new Client().post('/api/auth/password-reset/confirm', { token, password: 'matrix-new-password-1' })).status).toBe(200)
+      return c
+    },
+  },
+  {
+    label: 'a revoked API token', status: 401, make: async () => {
+      const { token } = await tokenFor(team.teamId, team.users.owner.id, 'owner', { revokedAt: new Date() })
+      return new Client(token)
+    },
+  },
+  {
+    label: 'an expired API token', status: 401, make: async () => {
+      const { token } = await tokenFor(team.teamId, team.users.owner.id, 'owner', { expiresAt: new Date(Date.now() - 1000) })
+      return new Client(token)
+    },
+  },
+]
+
+let removed: { session: Client; token: Client }
+
+/** A member removed from the team: still signed in, but the team is gone for them (404), and so are their tokens (401). */
+async function removedMember() {
+  const u = await createUser('removed')
+  await addMember(team.teamId, u.id, 'owner')
+  const c = await new Client().login(u.email, u.password)
+  const { token } = await tokenFor(team.teamId, u.id, 'owner')
+  const owner = clients.get('owner')!
+  expect((await owner.delete(`/api/teams/${team.teamId}/members/${u.id}`)).status).toBe(204)
+  return { session: c, token: new Client(token) }
 }
 
 describe('access matrix', () => {
@@ -125,10 +214,26 @@ describe('access matrix', () => {
         expect((await call(new Client(), r, await freshCtx())).status).toBe(401)
       })
 
-      for (const role of ROLES) {
-        const allowed = r.permission === null || (CAN[r.permission] as readonly Role[]).includes(role)
-        it(`${role}: ${allowed ? 'allowed' : '403'}`, async () => {
-          const res = await call(clients.get(role)!, r, await freshCtx())
+      for (const e of ENDED) {
+        it(`${e.label}: ${e.status}`, async () => {
+          const res = await call(e.client!, r, await freshCtx())
+          expect(res.status, JSON.stringify(res.body)).toBe(e.status)
+        })
+      }
+
+      if (r.permission !== null) {
+        it('a member removed from the team: 404 with their session, 401 with their token', async () => {
+          expect((await call(removed.session, r, await freshCtx())).status).toBe(404)
+          expect((await call(removed.token, r, await freshCtx())).status).toBe(401)
+        })
+      }
+
+      for (const caller of [...ROLES, ...ROLES.map((x) => `token:${x}` as const)]) {
+        const role = (caller.startsWith('token:') ? caller.slice(6) : caller) as Role
+        const byToken = caller.startsWith('token:')
+        const allowed = (r.permission === null || (CAN[r.permission] as readonly Role[]).includes(role)) && !(byToken && r.sessionOnly)
+        it(`${byToken ? `API token (${role})` : role}: ${allowed ? 'allowed' : '403'}`, async () => {
+          const res = await call(clients.get(caller)!, r, await freshCtx(people.get(caller)), people.get(caller))
           if (allowed) {
             // Allowed means past the access checks: any answer but 401/403/404 and no server error.
             if (r.allowedMayBe404 && res.status === 404) expect(res.body.statusMessage).not.toBe('Not found')
@@ -142,7 +247,7 @@ describe('access matrix', () => {
 
       if (r.permission !== null) {
         it('a member of another team gets 404 and sees nothing', async () => {
-          const res = await call(clients.get('outsider')!, r, await freshCtx())
+          const res = await call(clients.get('outsider')!, r, await freshCtx(), outsider)
           expect(res.status).toBe(404)
           expect(JSON.stringify(res.body)).not.toContain(String(team.users.owner.email))
         })

@@ -98,6 +98,10 @@ describe('bad uploads', () => {
     expect(frames.map((f) => f.frame.status)).toEqual(['failed', 'failed', 'done'])
     expect(frames[0]!.frame.failReason).toMatch(/cannot be decoded/)
     expect(frames[1]!.frame.failReason).toMatch(/cannot be decoded/)
+    // Its line plot answers 409 with the same reason, not a server error.
+    const line = await editor.get(`/api/frames/${ids[0]}/line/10`)
+    expect(line.status).toBe(409)
+    expect(line.body.statusMessage).toMatch(/could not be measured: .*cannot be decoded/)
   })
 
   it('refuses raw files whose size does not match the declared width and height, or without them', async () => {

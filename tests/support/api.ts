@@ -12,12 +12,20 @@ export interface UploadResult { name: string; ok: boolean; frameId?: number; dup
 export class Client {
   private cookies = new Map<string, string>()
 
+  /** With a token, the client is a script: it sends `Authorization: Bearer …` and no cookie. */
+  constructor(readonly bearer?: string) {}
+
+  private authHeaders(): Record<string, string> {
+    if (this.bearer) return { authorization: `Bearer ${this.bearer}` }
+    return this.cookies.size ? { cookie: this.cookieHeader() } : {}
+  }
+
   async request<T = any>(method: string, path: string, body?: unknown, headers: Record<string, string> = {}): Promise<ApiResponse<T>> {
     const res = await fetch(new URL(path, APP_URL()), {
       method,
       headers: {
         ...(body !== undefined ? { 'content-type': 'application/json' } : {}),
-        ...(this.cookies.size ? { cookie: [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ') } : {}),
+        ...this.authHeaders(),
         ...headers,
       },
       body: body !== undefined ? JSON.stringify(body) : undefined,
@@ -46,7 +54,7 @@ export class Client {
   async uploadFrames(reelId: number, files: { name: string; bytes: Uint8Array }[], query = '') {
     const form = new FormData()
     for (const f of files) form.append('file', new Blob([f.bytes as BlobPart]), f.name)
-    const res = await fetch(new URL(`/api/reels/${reelId}/frames${query}`, APP_URL()), { method: 'POST', body: form, headers: { cookie: this.cookieHeader() } })
+    const res = await fetch(new URL(`/api/reels/${reelId}/frames${query}`, APP_URL()), { method: 'POST', body: form, headers: this.authHeaders() })
     const text = await res.text()
     let body: any = text
     try { body = JSON.parse(text) } catch { /* not JSON */ }
@@ -57,6 +65,7 @@ export class Client {
   post<T = any>(path: string, body?: unknown) { return this.request<T>('POST', path, body ?? {}) }
   patch<T = any>(path: string, body?: unknown) { return this.request<T>('PATCH', path, body ?? {}) }
   delete<T = any>(path: string) { return this.request<T>('DELETE', path) }
+  put<T = any>(path: string, body?: unknown) { return this.request<T>('PUT', path, body ?? {}) }
 
   async login(email: string, password: string) {
     const r = await this.post('/api/auth/login', { email, password })

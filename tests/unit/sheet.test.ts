@@ -83,6 +83,18 @@ describe('CSV', () => {
     expect(safeText('+1')).toBe('\'+1')
     expect(safeText('@sum')).toBe('\'@sum')
     expect(safeText('plain, "quoted"')).toBe('plain, "quoted"')
+    // After a delimiter a spreadsheet may start a new cell (a file split on ';' or ','): neutralised there too.
+    expect(safeText('shot;=1+1')).toBe("shot;'=1+1")
+    expect(safeText('a, -2+3')).toBe("a, '-2+3")
+    expect(safeText('a,@x;+y')).toBe("a,'@x;'+y")
+  })
+
+  it('quotes every text cell, so ;=1+1 in a name stays inside its quotes', () => {
+    const text = sheetCsv([row({ seq: 3, name: 'take;=1+1.png', note: 'ok' })])
+    const line = text.split('\r\n')[1]!
+    expect(line).toContain('"take;\'=1+1.png"')
+    expect(line.startsWith('3,')).toBe(true)
+    expect(line).toContain(',"ok",')
   })
 
   it('writes one record per frame that parses back to the same fields', () => {
