@@ -3,7 +3,6 @@
 // restarts and reads the log lines, it does not time anything.
 import { spawn } from 'node:child_process'
 import { describe, expect, it } from 'vitest'
-// @ts-expect-error plain ES module without types
 import { deathReason, supervise } from '../../../docker-local/supervise.mjs'
 
 const FAST = { firstMs: 5, maxMs: 40, healthyAfterMs: 60_000 }
