@@ -13,7 +13,7 @@ import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '..
 import { linkIn, waitForMail } from '../support/mail'
 import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; tokenId: number }
+type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; tokenId: number; callerRole: Role }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'
   /** The allowed answer may be a 404 about the target's state (checked to carry its own message). */
@@ -67,8 +67,8 @@ const ROUTES: Route[] = [
   { method: 'DELETE', file: 'auth/sessions.delete.ts', path: () => '/api/auth/sessions', permission: null, sessionOnly: true },
   { method: 'DELETE', file: 'teams/[teamId]/members/[userId]/sessions.delete.ts', path: (c) => `/api/teams/${c.teamId}/members/${c.spareUserId}/sessions`, permission: 'manageTeam' },
   { method: 'GET', file: 'teams/[teamId]/tokens/index.get.ts', path: (c) => `/api/teams/${c.teamId}/tokens`, permission: 'view' },
-  // Every role may make a token of the least role; a token may not make one.
-  { method: 'POST', file: 'teams/[teamId]/tokens/index.post.ts', path: (c) => `/api/teams/${c.teamId}/tokens`, body: () => ({ name: `matrix ${uid()}`, role: 'producer' }), permission: 'view', sessionOnly: true },
+  // Every role may make a token of its own role; a token may not make one.
+  { method: 'POST', file: 'teams/[teamId]/tokens/index.post.ts', path: (c) => `/api/teams/${c.teamId}/tokens`, body: (c) => ({ name: `matrix ${uid()}`, role: c.callerRole }), permission: 'view', sessionOnly: true },
   // The token is the caller's own (made in freshCtx for whoever calls).
   { method: 'DELETE', file: 'teams/[teamId]/tokens/[id].delete.ts', path: (c) => `/api/teams/${c.teamId}/tokens/${c.tokenId}`, permission: 'view' },
 ]
@@ -131,7 +131,7 @@ beforeAll(async () => {
 afterAll(closeDb)
 
 /** Fresh targets for each call, so that a DELETE in one case cannot starve the next. */
-async function freshCtx(caller?: { id: number }): Promise<Ctx> {
+async function freshCtx(caller?: { id: number }, callerRole: Role = 'owner'): Promise<Ctx> {
   const spare = await createUser('spare')
   await addMember(team.teamId, spare.id, 'editor')
   const invitationId = firstId(await db().insert(t.invitations).values({
@@ -139,7 +139,7 @@ async function freshCtx(caller?: { id: number }): Promise<Ctx> {
   }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
   const tokenId = (await tokenFor(team.teamId, caller?.id ?? team.users.owner.id, 'producer')).id
-  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, tokenId }
+  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, tokenId, callerRole }
 }
 
 async function call(client: Client, r: Route, c: Ctx, who?: { email: string; password: string }) {
@@ -236,7 +236,7 @@ describe('access matrix', () => {
         const byToken = caller.startsWith('token:')
         const allowed = (r.permission === null || (CAN[r.permission] as readonly Role[]).includes(role)) && !(byToken && r.sessionOnly)
         it(`${byToken ? `API token (${role})` : role}: ${allowed ? 'allowed' : '403'}`, async () => {
-          const res = await call(clients.get(caller)!, r, await freshCtx(people.get(caller)), people.get(caller))
+          const res = await call(clients.get(caller)!, r, await freshCtx(people.get(caller), role), people.get(caller))
           if (allowed) {
             // Allowed means past the access checks: any answer but 401/403/404 and no server error.
             if (r.allowedMayBe404 && res.status === 404) expect(res.body.statusMessage).not.toBe('Not found')
