@@ -1,5 +1,5 @@
 import type { H3Event } from 'h3'
-import { and, eq, gt, isNull, ne } from 'drizzle-orm'
+import { and, eq, gt, isNull, lt, ne } from 'drizzle-orm'
 import { randomBytes } from 'node:crypto'
 
 type SessionUser = { id: number; email: string; name: string }
@@ -14,6 +14,8 @@ export const SESSION_DAYS = 7
  */
 export async function startSession(event: H3Event, user: SessionUser) {
   await endCurrentSession(event)
+  // Ended and expired sessions are kept only as long as a live one could be: the table stays small.
+  await useDb().delete(tables.sessions).where(and(eq(tables.sessions.userId, user.id), lt(tables.sessions.expiresAt, new Date())))
   const sid = randomBytes(32).toString('base64url')
   await useDb().insert(tables.sessions).values({
     userId: user.id, tokenHash: hashToken(sid), userAgent: (getRequestHeader(event, 'user-agent') ?? '').slice(0, 255),
