@@ -176,7 +176,6 @@ describe('V14.4: response headers', () => {
     expect(res.headers.get('x-content-type-options')).toBe('nosniff')
     expect(res.headers.get('x-frame-options')).toBe('DENY')
     expect(res.headers.get('referrer-policy')).toBe('same-origin')
-    expect(res.headers.get('cross-origin-resource-policy')).toBe('same-origin')
     expect(res.headers.get('x-powered-by')).toBeNull()
   })
 })
