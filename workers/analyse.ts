@@ -7,8 +7,8 @@ import {
   LEVEL_SCALES, linePlot, MV_CONVENTION, toScale,
 } from '../shared/engine/index'
 import type { FrameAnalysis, LevelScale, LinePlot, MatrixName, SourceRange } from '../shared/engine/index'
-import { decodeFile, DecodeFileError } from './lib/decode-file'
-import type { RawKind } from './lib/decode-file'
+import { decodeFile, DecodeFileError } from '../server/lib/decode-file'
+import type { RawKind } from '../server/lib/decode-file'
 
 class UsageError extends Error {}
 

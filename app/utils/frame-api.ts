@@ -4,7 +4,9 @@ import type { Decision } from '../../shared/utils/decisions'
 import type { Role } from '../../shared/utils/roles'
 import type { FrameFormat, FrameStatus } from '../../shared/utils/uploads'
 
-export type FrameImageKind = 'thumb' | 'picture' | 'overlay' | 'waveform-luma' | 'waveform-flat' | 'waveform-rgb' | 'vectorscope'
+import type { FrameImageKind } from '../../shared/utils/frame-images'
+
+export type { FrameImageKind }
 
 export interface FrameHistogramsJson {
   bins: number

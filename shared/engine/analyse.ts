@@ -3,7 +3,7 @@ import type { RowSource } from './decode'
 import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
 import type { Accumulators, Coef, Densities, Totals } from './accumulate'
 import { fastPass } from './fast'
-import { MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
+import { MATRICES, resolveMatrix, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre } from './scales'
 import { builtinSpec, DEFAULT_SPEC_NAME } from './specs'
 import type { DeliverySpec } from './specs'
@@ -31,12 +31,6 @@ const DENSITY_STRIPE = 2 * STRIPE_ALIGN
 // Coarse Cb/Cr histograms are filled with a margin of 128 codes each side and folded into
 // the published 0..bins−1 range at the end, so the hot loop needs no clamping.
 const COARSE_PAD = 128
-
-export function resolveMatrix(m: string | undefined): MatrixName {
-  if (m === undefined || m === '601') return '601'
-  if (m === '709') return '709'
-  throw new EngineInputError(`unknown matrix "${m}" (use 601 or 709)`)
-}
 
 export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): FrameAnalysis {
   return analyse(input, opts, true)

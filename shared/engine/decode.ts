@@ -1,9 +1,8 @@
 import { MATRICES } from './matrix'
 import type { FrameInput, MatrixName, SourceRange } from './types'
+import { EngineInputError } from './errors'
 
-export class EngineInputError extends Error {
-  override name = 'EngineInputError'
-}
+export { EngineInputError }
 
 /** One line of the picture in the engine's working form. */
 export interface RowBuffers {

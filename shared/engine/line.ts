@@ -1,6 +1,5 @@
 import { EngineInputError, makeRowBuffers, makeRowSource } from './decode'
-import { resolveMatrix } from './analyse'
-import { MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
+import { MATRICES, resolveMatrix, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre } from './scales'
 import type { FrameInput, LinePlot, LineSample, MatrixName } from './types'
 

@@ -1,3 +1,4 @@
+import { EngineInputError } from './errors'
 import type { MatrixName } from './types'
 
 export interface MatrixCoefficients {
@@ -84,4 +85,10 @@ export function barTargets(amplitude: number, matrix: MatrixName = '601'): Array
     const ce = compositeFromPbPr(p.pb, p.pr, matrix)
     return { name, u: ce.u, v: ce.v }
   })
+}
+
+export function resolveMatrix(m: string | undefined): MatrixName {
+  if (m === undefined || m === '601') return '601'
+  if (m === '709') return '709'
+  throw new EngineInputError(`unknown matrix "${m}" (use 601 or 709)`)
 }

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine'
 import { analysisJson, lineJson } from '../../shared/utils/report'
 import { linePlot } from '../../shared/engine'
-import { decodeBytes } from '../../workers/lib/decode-file'
+import { decodeBytes } from '../../server/lib/decode-file'
 import { Client } from '../support/api'
 import { APP_URL } from '../support/env'
 import { closeDb, createTeamWithRoles } from '../support/fixtures'
@@ -100,7 +100,7 @@ describe('upload → analysis', () => {
     expect(img.status).toBe(200)
     expect(img.headers.get('content-type')).toBe('image/png')
     expect([...new Uint8Array(await img.arrayBuffer()).subarray(0, 4)]).toEqual([0x89, 0x50, 0x4e, 0x47])
-    // The viewing copy of a raw capture is made on first request: a JPEG at the frame's size.
+    // The viewing copy of a raw capture, made by the worker: a JPEG at the frame's size.
     const pic = await fetch(new URL(`/api/frames/${fa.frame.id}/images/picture`, APP_URL()), { headers: { cookie: editor.cookieHeader() } })
     expect(pic.headers.get('content-type')).toBe('image/jpeg')
     const meta = await (await import('sharp')).default(new Uint8Array(await pic.arrayBuffer())).metadata()

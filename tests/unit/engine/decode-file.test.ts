@@ -9,7 +9,7 @@ import { promisify } from 'node:util'
 import { readFileSync } from 'node:fs'
 import sharp from 'sharp'
 import { afterAll, describe, expect, it } from 'vitest'
-import { decodeFile, DecodeFileError, MAX_INPUT_PIXELS } from '../../../workers/lib/decode-file'
+import { decodeFile, DecodeFileError, MAX_INPUT_PIXELS } from '../../../server/lib/decode-file'
 import { packV210 } from '../../../shared/engine/index'
 import { ffmpeg } from './ffmpeg'
 

@@ -4,7 +4,8 @@ import sharp from 'sharp'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, builtinSpec, MASK_DEFAULT_WIDTH, MASK_HIGH, MASK_LOW, PALETTE } from '../../../shared/engine/index'
 import type { FrameInput } from '../../../shared/engine/index'
-import { IMAGE_KINDS, renderFrameImages, THUMB_WIDTH } from '../../../workers/lib/frame-images'
+import { renderFrameImages } from '../../../workers/lib/frame-images'
+import { FRAME_IMAGE_KINDS, PICTURE_WIDTH, THUMB_WIDTH } from '../../../shared/utils/frame-images'
 import { solidRgb8, uyvyRow } from '../engine/helpers'
 
 const decode = async (bytes: Uint8Array) => sharp(bytes).raw().toBuffer({ resolveWithObject: true })
@@ -35,7 +36,7 @@ describe('frame images', () => {
     const spec = builtinSpec('digital-studio')!
     const a = analyseFrame(frame, { spec, keepDensities: true })
     const images = await renderFrameImages(frame, a, '601')
-    expect(Object.keys(images).sort()).toEqual([...IMAGE_KINDS].sort())
+    expect(Object.keys(images).sort()).toEqual([...FRAME_IMAGE_KINDS].sort())
 
     expect(images.thumb.contentType).toBe('image/jpeg')
     const thumb = await sharp(images.thumb.data).metadata()
@@ -45,7 +46,14 @@ describe('frame images', () => {
     const { data: tp } = await decode(images.thumb.data)
     expect(Math.abs(tp[0]! - 128)).toBeLessThanOrEqual(2)
 
-    for (const kind of IMAGE_KINDS.filter(k => k !== 'thumb')) {
+    // The viewing copy: computed, 1080 · 1600/1920 = 900.
+    expect(images.picture.contentType).toBe('image/jpeg')
+    const picture = await sharp(images.picture.data).metadata()
+    expect([picture.format, picture.width, picture.height]).toEqual(['jpeg', PICTURE_WIDTH, 900])
+    const { data: pp } = await decode(images.picture.data)
+    expect(Math.abs(pp[0]! - 128)).toBeLessThanOrEqual(2)
+
+    for (const kind of FRAME_IMAGE_KINDS.filter(k => k !== 'thumb' && k !== 'picture')) {
       expect(images[kind].contentType).toBe('image/png')
       expect((await sharp(images[kind].data).metadata()).format).toBe('png')
     }

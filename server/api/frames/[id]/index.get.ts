@@ -35,8 +35,9 @@ export default defineEventHandler(async (event) => {
           analysedAt: a.createdAt,
           durationMs: a.durationMs,
           histograms: a.histograms,
-          // `picture` (the viewing copy) is made on first request, so it is not in the stored list.
-          images: Object.fromEntries([...(a.images as string[]), 'picture'].map((k) => [k, `/api/frames/${frame.id}/images/${k}`])),
+          // A frame analysed before the viewing copy was stored lists none until the worker
+          // makes it; the page shows the thumbnail meanwhile.
+          images: Object.fromEntries((a.images as string[]).map((k) => [k, `/api/frames/${frame.id}/images/${k}`])),
         }
       : null,
   }
