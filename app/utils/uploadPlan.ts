@@ -145,22 +145,6 @@ export function completeOutcome(answer: { status: number; body: unknown } | { er
   return { state: 'failed', reason: said || `The server answered ${answer.status || 'nothing'}`, retryFrom: 'complete' }
 }
 
-/** Runs tasks with at most `limit` at a time; every task runs even when others fail. */
-export async function runLimited(tasks: readonly (() => Promise<unknown>)[], limit: number): Promise<void> {
-  let next = 0
-  const lane = async () => {
-    while (next < tasks.length) {
-      const task = tasks[next++]!
-      try {
-        await task()
-      } catch {
-        // Each task reports its own failure on its file; one failure must not stop the lane.
-      }
-    }
-  }
-  await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, tasks.length)) }, lane))
-}
-
 export interface UploadTally {
   files: number
   finished: number

@@ -1,4 +1,4 @@
-import { relations, sql } from 'drizzle-orm'
+import { sql } from 'drizzle-orm'
 import {
   bigint, boolean, char, datetime, double, index, int, json, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar,
 } from 'drizzle-orm/mysql-core'
@@ -109,22 +109,6 @@ export const auditLog = mysqlTable('audit_log', {
   createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
 }, (t) => [index('audit_team_idx').on(t.teamId, t.createdAt)])
 
-export const usersRelations = relations(users, ({ many }) => ({ memberships: many(memberships) }))
-export const teamsRelations = relations(teams, ({ many }) => ({ memberships: many(memberships), productions: many(productions) }))
-export const membershipsRelations = relations(memberships, ({ one }) => ({
-  team: one(teams, { fields: [memberships.teamId], references: [teams.id] }),
-  user: one(users, { fields: [memberships.userId], references: [users.id] }),
-}))
-export const productionsRelations = relations(productions, ({ one, many }) => ({
-  team: one(teams, { fields: [productions.teamId], references: [teams.id] }),
-  reels: many(reels),
-  deliverySpec: one(deliverySpecs, { fields: [productions.deliverySpecId], references: [deliverySpecs.id] }),
-}))
-export const reelsRelations = relations(reels, ({ one }) => ({
-  production: one(productions, { fields: [reels.productionId], references: [productions.id] }),
-}))
-
-
 /** A file announced by the browser and given a presigned URL; becomes a frame once confirmed. */
 export const uploads = mysqlTable('uploads', {
   id: id(),
@@ -193,10 +177,6 @@ export const analyses = mysqlTable('analyses', {
   ...timestamps,
 }, (t) => [uniqueIndex('analyses_frame_uq').on(t.frameId), index('analyses_team_idx').on(t.teamId)])
 
-export const framesRelations = relations(frames, ({ one }) => ({
-  reel: one(reels, { fields: [frames.reelId], references: [reels.id] }),
-  analysis: one(analyses, { fields: [frames.id], references: [analyses.frameId] }),
-}))
 
 /** A reviewer's decision on a frame; one current decision per frame, every change in the audit log. */
 export const decisions = mysqlTable('decisions', {

@@ -80,5 +80,3 @@ export async function loadSheetContext(db: Db, signoffId: number) {
     return { ...head, rows }
   })
 }
-
-export type SheetContext = NonNullable<Awaited<ReturnType<typeof loadSheetContext>>>

@@ -85,11 +85,6 @@ export function fromScale(value: number, scale: LevelScale): number {
   }
 }
 
-/** A difference (e.g. chroma peak-to-peak) given in Y' units (0..1), on a scale. */
-export function spanToScale(unitSpan: number, scale: LevelScale): number {
-  return toScale(unitToCode8(unitSpan), scale) - toScale(BLACK_CODE8, scale)
-}
-
 export function scaleDigits(scale: LevelScale): number {
   switch (scale) {
     case 'ire': case 'ire0': case 'pct': return 1
@@ -109,11 +104,4 @@ export function formatShare(share: number): string {
   if (share === 0) return '0 %'
   const pct = share * 100
   return `${pct < 0.01 ? pct.toExponential(1) : pct < 1 ? pct.toFixed(3) : pct.toFixed(2)} %`
-}
-
-/** Every scale at once, for the values panel. */
-export function allScales(code8: number): Record<LevelScale, number> {
-  const out = {} as Record<LevelScale, number>
-  for (const s of LEVEL_SCALES) out[s] = toScale(code8, s)
-  return out
 }
