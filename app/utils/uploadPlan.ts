@@ -8,7 +8,7 @@ export type RawFormat = (typeof RAW_FORMATS)[number]
 
 export const ACCEPTED_EXTENSIONS = ['.png', '.tif', '.tiff', '.jpg', '.jpeg', '.webp', '.uyvy', '.yuv', '.v210'] as const
 
-/** Sizes people capture raw frames at. 486 and 480 are NTSC active lines (analogue, DV/MPEG: REFERENCE §5). */
+/** Sizes people capture raw frames at. 486 and 480 are NTSC active lines (analogue NTSC incl. half-lines; DV/MPEG/ATSC: SMPTE 170M and common practice). */
 export const RAW_PRESETS = [
   { width: 720, height: 486, label: '720 × 486', note: 'NTSC, analogue active lines' },
   { width: 720, height: 480, label: '720 × 480', note: 'NTSC, DV and MPEG' },

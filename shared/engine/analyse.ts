@@ -1,4 +1,4 @@
-import { EngineInputError, makeRowSource, STRIPE_ALIGN } from './decode'
+import { makeRowSource, STRIPE_ALIGN } from './decode'
 import type { RowSource } from './decode'
 import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
 import type { Accumulators, Coef, Densities, Totals } from './accumulate'
@@ -12,7 +12,7 @@ import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP, percentile, shareAbove, shareBelow }
 import { waveformGeometry, waveformRowOffsets, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP, WAVEFORM_ROWS } from './waveform'
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 import { MASK_HIGH, MASK_LOW, maskGeometry, maskLimits } from './mask'
-import type { AnalyseOptions, FrameAnalysis, FrameInput, Histograms, LevelDistributions, MatrixName } from './types'
+import type { AnalyseOptions, FrameAnalysis, FrameInput, Histograms, LevelDistributions } from './types'
 
 export { COMPOSITE_OUT_HIGH_IRE, COMPOSITE_OUT_LOW_IRE } from './accumulate'
 
@@ -151,7 +151,7 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
     compositeIre: { min: code8ToIre(t.compMin), max: code8ToIre(t.compMax) },
     chroma: {
       cbMin: t.cbMin, cbMax: t.cbMax, crMin: t.crMin, crMax: t.crMax,
-      // t.cMax is the amplitude in codes; p-p on the setup scale is 2·92.5·C (REFERENCE.md §4).
+      // t.cMax is the amplitude in codes; p-p on the setup scale is 2·92.5·C (SMPTE 170M IRE scale with setup — memory; computed).
       ppMaxIre: 2 * 92.5 * t.cMax / 219,
     },
     shares: {

@@ -198,7 +198,7 @@ function vectorscopeLayers(v: VectorscopeDensity, matrix: MatrixName, scale: num
       under.set(Math.round(cx + rpx * Math.cos(a)), Math.round(cy - rpx * Math.sin(a)), PALETTE.graticule)
     }
   }
-  // Burst sits at 180° (REFERENCE.md §4): a short stub on the −U axis.
+  // Burst sits at 180° (SMPTE 170M — memory): a short stub on the −U axis.
   under.hline(px(-0.15), cx, cy + 1, PALETTE.graticuleLabel)
 
   // Targets are painted over the trace, so they stay legible where the picture has bars.

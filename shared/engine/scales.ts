@@ -9,14 +9,14 @@ export const BLACK_CODE8 = 16
 export const WHITE_CODE8 = 235
 export const LUMA_SPAN_CODE8 = WHITE_CODE8 - BLACK_CODE8
 
-/** NTSC System M with setup: black at 7.5 IRE, white at 100 IRE (REFERENCE.md §4). */
+/** NTSC System M with setup: black at 7.5 IRE, white at 100 IRE (SMPTE 170M — memory). */
 export const SETUP_IRE = 7.5
 export const SETUP_SPAN_IRE = 100 - SETUP_IRE
 
 /**
  * The `mv` scale follows the component analogue convention: black 0 mV, white 700 mV.
  * The `mvNtsc` scale follows NTSC composite with setup: 140 IRE = 1 V, so 1 IRE = 7.143 mV,
- * blanking 0 mV, black 53.6 mV, white 714.3 mV (REFERENCE.md §4).
+ * blanking 0 mV, black 53.6 mV, white 714.3 mV (SMPTE 170M, 1 IRE = 1/140 V — memory; computed).
  */
 export const MV_CONVENTION = 'component: black 0 mV, white 700 mV' as const
 export const MV_COMPONENT_WHITE = 700

@@ -1,8 +1,7 @@
 // Upload → queue → worker → results through the real API, S3 fake, Redis and MariaDB.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine'
+import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME, linePlot } from '../../shared/engine'
 import { analysisJson, lineJson } from '../../shared/utils/report'
-import { linePlot } from '../../shared/engine'
 import { decodeBytes } from '../../server/lib/decode-file'
 import { Client } from '../support/api'
 import { APP_URL } from '../support/env'
@@ -90,7 +89,7 @@ describe('upload → analysis', () => {
     const line = await editor.get(`/api/frames/${fa.frame.id}/line/100`)
     expect(line.status).toBe(200)
     expect(line.body.line).toEqual(lineJson(linePlot(await decodeBytes(u, { raw: 'uyvy', width: 720, height: 486 }), 100, { matrix: '601' })))
-    // 720 samples at 13.5 MHz: the last sample starts at 719 / 13.5 µs (BT.601 sampling, REFERENCE.md §5).
+    // 720 samples at 13.5 MHz: the last sample starts at 719 / 13.5 µs (ITU-R BT.601 sampling, computed).
     expect(line.body.line.samples.at(-1).us).toBeCloseTo(719 / 13.5, 3)
     expect((await editor.get(`/api/frames/${fa.frame.id}/line/486`)).status).toBe(400)
 

@@ -1,5 +1,5 @@
 // Upload planning in the browser. Limits from shared/utils/uploads.ts (UPLOAD_LIMITS: 256 MiB a
-// file, 200 files per announcement, 16 MiB parts); raw sizes from DESIGN.md "Input forms"
+// file, 200 files per announcement, 16 MiB parts); raw sizes people capture at (common practice)
 // (UYVY 2 bytes a pixel; v210 packs 6 pixels in 16 bytes, rows padded to 48-pixel blocks of
 // 128 bytes — the layout shared/engine/decode.ts reads).
 import { describe, expect, it } from 'vitest'
