@@ -32,6 +32,28 @@ export const SCALE_UNITS: Record<LevelScale, string> = {
   code10: '',
 }
 
+/** Short names for column headings and the command line; SCALE_LABELS gives the long form. */
+export const SCALE_SHORT: Record<LevelScale, string> = {
+  ire: 'IRE',
+  ire0: 'IRE, no setup',
+  mv: 'mV',
+  mvNtsc: 'mV NTSC',
+  pct: '%',
+  code8: '8-bit',
+  code10: '10-bit',
+}
+
+/** The unit written after a spec's limit (the sheet, on screen and in the PDF). */
+export const SCALE_LIMIT_UNITS: Record<LevelScale, string> = {
+  ire: 'IRE',
+  ire0: 'IRE (no setup)',
+  mv: 'mV',
+  mvNtsc: 'mV (NTSC)',
+  pct: '%',
+  code8: '(8-bit code)',
+  code10: '(10-bit code)',
+}
+
 export const SCALE_LABELS: Record<LevelScale, string> = {
   ire: 'IRE (7.5 setup)',
   ire0: 'IRE (no setup)',

@@ -10,7 +10,7 @@
 import type { Browser, BrowserContext, Page } from 'playwright-core'
 import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/db/demo'
+import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/seed/demo'
 import { lineAtOffset } from '../../app/utils/picture'
 import { type Client, signedIn } from '../support/api'
 import { launchBrowser, screen } from '../support/browser'

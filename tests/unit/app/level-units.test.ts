@@ -3,7 +3,7 @@
 // 10-bit white 940, black 64 — BT.601 Table 3), and the component convention of
 // shared/engine/scales.ts (black 0 mV, white 700 mV — common practice).
 import { describe, expect, it } from 'vitest'
-import { compositeScale, formatIreAs, formatOutShare, ireToScale } from '../../../app/utils/levelUnits'
+import { compositeScale, formatIreAs, formatOutShare, ireToScale } from '../../../app/utils/level-units'
 
 describe('stored IRE (7.5 setup) on the other scales', () => {
   it('white: 100 IRE is code 235, 940 at 10 bits, 700 mV, 100 %, 100 IRE without setup (BT.601 Table 3, SMPTE 170M)', () => {

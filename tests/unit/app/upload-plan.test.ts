@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest'
 import { UPLOAD_LIMITS } from '../../../shared/utils/uploads'
 import {
   checkRawFile, checkRawSize, checkUploadFile, completeOutcome, inBatches, partRanges, rawFrameBytes, tallyUploads,
-} from '../../../app/utils/uploadPlan'
+} from '../../../app/utils/upload-plan'
 
 const MiB = 2 ** 20
 

@@ -184,7 +184,7 @@ describe('decodeFile: colour profiles and colour models', () => {
 })
 
 const run = promisify(execFile)
-const CLI = ['--import', 'tsx', 'workers/analyse.ts']
+const CLI = ['--import', 'tsx', 'server/cli/analyse.ts']
 
 async function cli(args: string[]): Promise<{ code: number, stdout: string, stderr: string }> {
   try {
