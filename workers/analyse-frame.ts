@@ -5,7 +5,7 @@ import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
 import { AnalysisScratch, ENGINE_VERSION, analyseFrame } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
-import { analysisJson } from '../shared/utils/report'
+import { analysisJson, histogramsJson } from '../shared/utils/report'
 import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
 import { DecodeFileError } from '../server/lib/decode-file'
@@ -44,7 +44,7 @@ async function storeImages(storage: Storage, frame: StoredFrame['frame'], images
 }
 
 /** The viewing copy, thumbnail and line data of a frame analysed before they were stored. */
-async function storeViews({ db, storage }: AnalyseDeps, stored: StoredFrame, had: string[]) {
+async function storeViews({ db, storage }: AnalyseDeps, stored: StoredFrame, had: readonly string[]) {
   const { input, matrix } = await decodeStoredFrame(storage, stored)
   const views = await renderViewingCopies(input, matrix)
   await storeImages(storage, stored.frame, views, encodeFrameLines(input))
@@ -61,7 +61,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
   const [done] = await db.select({ id: t.analyses.id, images: t.analyses.images }).from(t.analyses).where(eq(t.analyses.frameId, frameId)).limit(1)
   if (done) {
     // Analysed by a version that did not yet store the viewing copy and the line data.
-    if (!(done.images as string[]).includes('picture')) await storeViews(deps, stored, done.images as string[])
+    if (!done.images.includes('picture')) await storeViews(deps, stored, done.images)
     await db.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
     return { status: 'skipped' }
   }
@@ -85,11 +85,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     }
     await storeImages(storage, frame, images, encodeFrameLines(input))
     const json = analysisJson(a, spec.name)
-    const h = a.histograms
-    const histograms = {
-      bins: h.bins, rgbCoding: h.rgbCoding,
-      y: [...h.y], cb: [...h.cb], cr: [...h.cr], r: [...h.r], g: [...h.g], b: [...h.b],
-    }
+    const histograms = histogramsJson(a.histograms)
     const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
     await db.transaction(async (tx) => {
       // The unique key on frame_id turns a racing second run into a no-op.
@@ -97,7 +93,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
         frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
         lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
         compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare,
-        result: json, histograms, images: Object.keys(images), durationMs: Math.round(performance.now() - started),
+        result: json, histograms, images: FRAME_IMAGE_KINDS.filter((k) => k in images), durationMs: Math.round(performance.now() - started),
       }).onDuplicateKeyUpdate({ set: { frameId } })
       await tx.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
     })

@@ -5,6 +5,10 @@ import {
 import { ROLES } from '../../shared/utils/roles'
 import { FRAME_FORMATS, FRAME_STATUSES } from '../../shared/utils/uploads'
 import { DECISIONS } from '../../shared/utils/decisions'
+import type { DeliverySpec } from '../../shared/engine/specs'
+import type { FrameImageKind } from '../../shared/utils/frame-images'
+import type { AnalysisJson, HistogramsJson } from '../../shared/utils/report'
+import type { SheetSummary } from '../lib/sheet-rules'
 
 // MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
 const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
@@ -66,7 +70,7 @@ export const deliverySpecs = mysqlTable('delivery_specs', {
   builtin: varchar('builtin', { length: 64 }),
   name: varchar('name', { length: 120 }).notNull(),
   version: int('version').notNull().default(1),
-  body: json('body').notNull(),
+  body: json('body').$type<DeliverySpec>().notNull(),
   ...timestamps,
 }, (t) => [index('delivery_specs_team_idx').on(t.teamId)])
 
@@ -170,9 +174,10 @@ export const analyses = mysqlTable('analyses', {
   compMaxIre: double('comp_max_ire').notNull(),
   outShare: double('out_share').notNull(),
   /** The engine's JSON result (same field names as `npm run analyse -- --json`), without pixel data. */
-  result: json('result').notNull(),
-  histograms: json('histograms').notNull(),
-  images: json('images').notNull(),
+  result: json('result').$type<AnalysisJson>().notNull(),
+  histograms: json('histograms').$type<HistogramsJson>().notNull(),
+  /** The images stored for the frame (served as /api/frames/:id/images/:kind). */
+  images: json('images').$type<FrameImageKind[]>().notNull(),
   durationMs: int('duration_ms').notNull(),
   ...timestamps,
 }, (t) => [uniqueIndex('analyses_frame_uq').on(t.frameId), index('analyses_team_idx').on(t.teamId)])
@@ -207,14 +212,14 @@ export const signoffs = mysqlTable('signoffs', {
   specName: varchar('spec_name', { length: 64 }).notNull(),
   specTitle: varchar('spec_title', { length: 120 }).notNull(),
   specVersion: int('spec_version').notNull(),
-  specBody: json('spec_body').notNull(),
+  specBody: json('spec_body').$type<DeliverySpec>().notNull(),
   engineVersion: varchar('engine_version', { length: 32 }).notNull(),
   sheetStatus: mysqlEnum('sheet_status', SHEET_STATUSES).notNull().default('pending'),
   sheetError: varchar('sheet_error', { length: 500 }),
   pdfKey: varchar('pdf_key', { length: 255 }),
   csvKey: varchar('csv_key', { length: 255 }),
   /** The summary as printed on the sheet (counts and overall result). */
-  summary: json('summary'),
+  summary: json('summary').$type<SheetSummary>(),
   supersededAt: datetime('superseded_at', { mode: 'date', fsp: 3 }),
   supersededBy: ref('superseded_by').references(() => users.id, { onDelete: 'set null' }),
   reopenReason: varchar('reopen_reason', { length: 1000 }),

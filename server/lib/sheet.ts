@@ -4,7 +4,6 @@
 import { and, asc, desc, eq, isNull } from 'drizzle-orm'
 import type { Db, DbOrTx } from '../db/client'
 import * as t from '../db/schema'
-import type { AnalysisJson } from '../../shared/utils/report'
 import type { SheetReason, SheetRow } from './sheet-rules'
 
 export type SignoffRow = typeof t.signoffs.$inferSelect
@@ -34,7 +33,7 @@ export async function loadSheetRows(db: DbOrTx, reelId: number): Promise<SheetRo
     // An analysis row can outlive a status flip; the sheet trusts the row, not the flag.
     verdict: r.status === 'done' ? r.verdict : null,
     note: r.note ?? '',
-    reasons: ((result as AnalysisJson | null)?.reasons ?? []).map((x): SheetReason => ({ limit: x.limit, message: x.message, severity: x.severity })),
+    reasons: (result?.reasons ?? []).map((x): SheetReason => ({ limit: x.limit, message: x.message, severity: x.severity })),
   }))
 }
 

@@ -7,11 +7,9 @@ import type { FrameInput, MatrixName } from '../../shared/engine/types'
 import { RAW_FORMATS, UPLOAD_LIMITS } from '../../shared/utils/uploads'
 import type { DbOrTx } from '../db/client'
 import * as t from '../db/schema'
+import type { FrameRow, ReelRow } from '../../shared/types/db'
 import { decodeBytes, type RawKind } from './decode-file'
 import type { Storage } from './storage'
-
-type FrameRow = typeof t.frames.$inferSelect
-type ReelRow = typeof t.reels.$inferSelect
 
 export interface StoredFrame {
   frame: FrameRow
