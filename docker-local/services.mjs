@@ -64,7 +64,7 @@ export function serviceEnv(p) {
     // Served over plain http on loopback: a Secure cookie would not be sent back by every browser.
     NUXT_SESSION_COOKIE_SECURE: 'false',
     LW_MAIL_UI_URL: `http://127.0.0.1:${p.ports.mailUi}`,
-    // The S3 SDK is pinned to a version that supports this machine's Node 20 (STACK.md); its
+    // The S3 SDK is pinned to a version that supports this machine's Node 20 (see DEVELOPERS.md, Upgrading Node); its
     // notice that later releases will need Node 22 would otherwise repeat in every process.
     AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: 'true',
   }

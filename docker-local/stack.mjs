@@ -70,7 +70,7 @@ export function ensureBuild() {
 
 export function migrateAndSeed(env) {
   run(process.execPath, ['--import', 'tsx', 'server/db/migrate.ts'], { env })
-  run(process.execPath, ['--import', 'tsx', 'server/db/seed.ts'], { env })
+  run(process.execPath, ['--import', 'tsx', 'server/seed/seed.ts'], { env })
 }
 
 /**
@@ -142,7 +142,7 @@ export async function waitForHttp(url, ms = 60000) {
  */
 export async function signInDemoOwner(base) {
   const { tsImport } = await import('tsx/esm/api')
-  const { DEMO_USERS } = await tsImport('../server/db/demo.ts', import.meta.url)
+  const { DEMO_USERS } = await tsImport('../server/seed/demo.ts', import.meta.url)
   const owner = DEMO_USERS.find((u) => u.role === 'owner')
   const login = await fetch(new URL('/api/auth/login', base), {
     method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: owner.email, password: owner.password }),

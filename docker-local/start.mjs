@@ -38,7 +38,7 @@ try {
   await waitForHttp(`${url}/login`)
   // tsx is installed by now; it lets this plain-Node script read the TypeScript demo data.
   const { tsImport } = await import('tsx/esm/api')
-  const { DEMO_USERS, DEMO_TEAM } = await tsImport('../server/db/demo.ts', import.meta.url)
+  const { DEMO_USERS, DEMO_TEAM } = await tsImport('../server/seed/demo.ts', import.meta.url)
   const rows = DEMO_USERS.map((u) => `    ${u.role.padEnd(9)} ${u.email.padEnd(28)} ${u.password}`).join('\n')
   console.log(`
   Linewise is running at ${url}

@@ -5,14 +5,16 @@ import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
 import { AnalysisScratch, ENGINE_VERSION, analyseFrame } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
-import { analysisJson } from '../shared/utils/report'
+import { analysisJson, histogramsJson } from '../shared/utils/report'
 import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
+import { DecodeFileError } from '../server/lib/decode-file'
+import { encodeFrameLines } from '../server/lib/frame-lines'
 import { specForProduction } from '../server/lib/specs'
 import { keys, type Storage } from '../server/lib/storage'
-import { DecodeFileError, decodeBytes } from './lib/decode-file'
-import { renderFrameImages } from './lib/frame-images'
-import { UPLOAD_LIMITS } from '../shared/utils/uploads'
+import { decodeStoredFrame, loadStoredFrame, type StoredFrame } from '../server/lib/stored-frame'
+import { FRAME_IMAGE_KINDS } from '../shared/utils/frame-images'
+import { renderFrameImages, renderViewingCopies, type FrameImage } from './lib/frame-images'
 
 export interface AnalyseDeps {
   db: Db
@@ -25,8 +27,6 @@ export interface JobLike {
   opts: { attempts?: number }
 }
 
-export { IMAGE_KINDS, type ImageKind } from './lib/frame-images'
-
 /** What the person sees when a frame fails: short, about their file, never a stack trace. */
 function failReason(e: unknown) {
   const msg = (e as Error).message ?? String(e)
@@ -36,15 +36,32 @@ function failReason(e: unknown) {
 
 const scratchPool: AnalysisScratch[] = []
 
+async function storeImages(storage: Storage, frame: StoredFrame['frame'], images: Partial<Record<string, FrameImage>>, lines: Uint8Array) {
+  await Promise.all([
+    ...Object.entries(images).map(([kind, img]) => storage.put(keys.image(frame.teamId, frame.id, kind), img!.data, img!.contentType)),
+    storage.put(keys.lines(frame.teamId, frame.id), lines, 'application/octet-stream'),
+  ])
+}
+
+/** The viewing copy, thumbnail and line data of a frame analysed before they were stored. */
+async function storeViews({ db, storage }: AnalyseDeps, stored: StoredFrame, had: readonly string[]) {
+  const { input, matrix } = await decodeStoredFrame(storage, stored)
+  const views = await renderViewingCopies(input, matrix)
+  await storeImages(storage, stored.frame, views, encodeFrameLines(input))
+  const images = FRAME_IMAGE_KINDS.filter((k) => had.includes(k) || k in views)
+  await db.update(t.analyses).set({ images }).where(eq(t.analyses.frameId, stored.frame.id))
+}
+
 export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{ status: 'done' | 'skipped' }> {
   const { db, storage } = deps
   const { frameId } = job.data
-  const [row] = await db.select({ frame: t.frames, reel: t.reels }).from(t.frames)
-    .innerJoin(t.reels, eq(t.reels.id, t.frames.reelId)).where(eq(t.frames.id, frameId)).limit(1)
-  if (!row) return { status: 'skipped' } // deleted since it was queued
-  const { frame, reel } = row
-  const [done] = await db.select({ id: t.analyses.id }).from(t.analyses).where(eq(t.analyses.frameId, frameId)).limit(1)
+  const stored = await loadStoredFrame(db, frameId)
+  if (!stored) return { status: 'skipped' } // deleted since it was queued
+  const { frame, reel } = stored
+  const [done] = await db.select({ id: t.analyses.id, images: t.analyses.images }).from(t.analyses).where(eq(t.analyses.frameId, frameId)).limit(1)
   if (done) {
+    // Analysed by a version that did not yet store the viewing copy and the line data.
+    if (!done.images.includes('picture')) await storeViews(deps, stored, done.images)
     await db.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
     return { status: 'skipped' }
   }
@@ -52,12 +69,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
 
   const started = performance.now()
   try {
-    const bytes = await storage.get(frame.objectKey)
-    const isRaw = frame.format === 'uyvy' || frame.format === 'v210'
-    const input = await decodeBytes(bytes, {
-      range: reel.sourceRange, raw: isRaw ? (frame.format as 'uyvy' | 'v210') : undefined,
-      width: frame.width, height: frame.height, maxPixels: UPLOAD_LIMITS.maxPixels,
-    })
+    const { input } = await decodeStoredFrame(storage, stored)
     const { spec, version } = await specForProduction(db, reel.productionId)
     // Density buffers are reused from job to job (8 MB per 1080p frame otherwise allocated
     // and collected); one scratch per job in flight, returned once its images are drawn.
@@ -71,14 +83,9 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     finally {
       scratchPool.push(scratch)
     }
-    await Promise.all(Object.entries(images).map(([kind, img]) =>
-      storage.put(keys.image(frame.teamId, frame.id, kind), img.data, img.contentType)))
+    await storeImages(storage, frame, images, encodeFrameLines(input))
     const json = analysisJson(a, spec.name)
-    const h = a.histograms
-    const histograms = {
-      bins: h.bins, rgbCoding: h.rgbCoding,
-      y: [...h.y], cb: [...h.cb], cr: [...h.cr], r: [...h.r], g: [...h.g], b: [...h.b],
-    }
+    const histograms = histogramsJson(a.histograms)
     const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
     await db.transaction(async (tx) => {
       // The unique key on frame_id turns a racing second run into a no-op.
@@ -86,7 +93,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
         frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
         lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
         compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare,
-        result: json, histograms, images: Object.keys(images), durationMs: Math.round(performance.now() - started),
+        result: json, histograms, images: FRAME_IMAGE_KINDS.filter((k) => k in images), durationMs: Math.round(performance.now() - started),
       }).onDuplicateKeyUpdate({ set: { frameId } })
       await tx.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
     })

@@ -12,7 +12,7 @@ import { DEFAULT_JOB_OPTIONS, QUEUE_ANALYSE, QUEUE_MAIL, type AnalyseJob, type M
 import { workerEnv } from './env'
 import { processMail } from './mail'
 import { startSheetWorker } from './sheet-worker'
-import { msFromEnv, sweep, SWEEP } from './sweeper'
+import { msFromEnv, queueMissingViews, sweep, SWEEP } from './sweeper'
 
 const env = workerEnv()
 const concurrency = env.concurrency ?? availableParallelism()
@@ -45,6 +45,8 @@ const sweepTimer = setInterval(() => {
   sweep(db, analyseQueue).then((n) => { if (n) console.log(`[worker] re-queued ${n} frame(s)`) })
     .catch((e) => console.error('[worker] sweep', (e as Error).message))
 }, SWEEP.intervalMs)
+queueMissingViews(db, analyseQueue).then((n) => { if (n) console.log(`[worker] queued ${n} frame(s) for their viewing copy and line data`) })
+  .catch((e) => console.error('[worker] views backfill', (e as Error).message))
 console.log(`[worker] ready: analyse ×${concurrency}, mail ×4, sheet ×1`)
 
 let closing = false

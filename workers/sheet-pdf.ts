@@ -4,7 +4,7 @@
 import { createRequire } from 'node:module'
 import { readFileSync } from 'node:fs'
 import PDFDocument from 'pdfkit'
-import { SCALE_LABELS, type DeliverySpec, type LevelScale } from '../shared/engine'
+import { SCALE_LABELS, SCALE_LIMIT_UNITS, type DeliverySpec, type LevelScale } from '../shared/engine'
 import { DECISION_LABELS } from '../shared/utils/decisions'
 import { OVERALL_LABELS, framesWithScopes, type SheetRow, type SheetSummary } from '../server/lib/sheet-rules'
 
@@ -60,9 +60,8 @@ export const fmt = (v: number | null, digits = 1) => (v === null ? '—' : (Obje
 export const fmtPct = (share: number | null) => (share === null ? '—' : share === 0 ? '0 %' : `${fmt(share * 100, share * 100 < 1 ? 3 : 2)} %`)
 export const fmtUtc = (d: Date) => `${d.toISOString().slice(0, 16).replace('T', ' ')} UTC`
 
-const UNIT_SHORT: Record<string, string> = { ire: 'IRE', ire0: 'IRE (no setup)', mv: 'mV', mvNtsc: 'mV (NTSC)', pct: '%', code8: '(8-bit code)', code10: '(10-bit code)' }
 const QUANTITY_LABELS: Record<string, string> = { luma: "Luma Y'", composite: 'Composite (Y\' ± C)', rgb: "Each of R', G', B'", cb: 'Cb', cr: 'Cr' }
-export const threshold = (value: number, unit: string) => `${fmt(value, Number.isInteger(value) ? 0 : 1)} ${UNIT_SHORT[unit] ?? unit}`
+export const threshold = (value: number, unit: string) => `${fmt(value, Number.isInteger(value) ? 0 : 1)} ${SCALE_LIMIT_UNITS[unit as LevelScale] ?? unit}`
 
 export const CAUTION_TEXT = 'Linewise measures levels as an aid to quality control. It does not replace the broadcaster\'s or distributor\'s '
   + 'own QC: their technical specification and their checks take precedence over this sheet. Check which spec and version '
@@ -216,7 +215,7 @@ function specSection(doc: Doc, input: SheetInput, left: number, width: number, b
     ], 'regular', [false, false, false, true, true, false])
   }
   doc.y = y + 10
-  const units = [...new Set(spec.limits.map((l) => l.unit))].map((u) => `${UNIT_SHORT[u] ?? u} = ${SCALE_LABELS[u as LevelScale] ?? u}`)
+  const units = [...new Set(spec.limits.map((l) => l.unit))].map((u) => `${SCALE_LIMIT_UNITS[u as LevelScale] ?? u} = ${SCALE_LABELS[u as LevelScale] ?? u}`)
   doc.font('regular').fontSize(8.5).fillColor(MUTED).text(`Units: ${units.join('; ')}. A frame is "caution" between the caution point and the threshold, "fail" beyond the threshold (over more than the area tolerance).`, left, doc.y, { width })
 }
 

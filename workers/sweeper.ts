@@ -1,7 +1,7 @@
 // The outbox side of "nothing lost": frames whose job went missing (Redis restarted or was
 // down at upload, a worker died beyond BullMQ's stall recovery) are queued again. The job id
 // is the frame's, so a frame that still has a live job is left alone.
-import { and, eq, lt, or } from 'drizzle-orm'
+import { and, eq, lt, or, sql } from 'drizzle-orm'
 import type { Queue } from 'bullmq'
 import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
@@ -44,4 +44,22 @@ export async function sweep(db: Db, queue: Queue<AnalyseJob>, now = Date.now()):
     requeued++
   }
   return requeued
+}
+
+/**
+ * Frames analysed before the worker stored a viewing copy and line data (the web server
+ * serves only what the worker stored) get a job that makes them: the job finds the analysis,
+ * keeps it, and writes the missing views. Run once when the worker starts; idempotent.
+ */
+export async function queueMissingViews(db: Db, queue: Queue<AnalyseJob>): Promise<number> {
+  const rows = await db.select({ id: t.analyses.frameId }).from(t.analyses)
+    .where(sql`NOT JSON_CONTAINS(${t.analyses.images}, '"picture"')`)
+  for (const { id } of rows) {
+    const job = await queue.getJob(analyseJobId(id))
+    const state = job ? await job.getState() : 'missing'
+    if (state === 'waiting' || state === 'active' || state === 'delayed' || state === 'prioritized') continue
+    if (job) await job.remove().catch(() => {})
+    await queue.add('analyse', { frameId: id }, { jobId: analyseJobId(id) })
+  }
+  return rows.length
 }

@@ -7,7 +7,7 @@ import type { FrameFormat } from '#shared/utils/uploads'
 import {
   checkRawFile, checkRawSize, checkUploadFile, completeOutcome, inBatches, partRanges, tallyUploads,
   type RetryFrom, type UploadState,
-} from '~/utils/uploadPlan'
+} from '~/utils/upload-plan'
 
 /** Enough to keep a connection busy without starving the page's own requests. */
 const PARALLEL = 3

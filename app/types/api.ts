@@ -1,38 +1,19 @@
-import type { Role } from '#shared/utils/roles'
-import type { Decision } from '#shared/utils/decisions'
-import type { FrameFormat, FrameStatus } from '#shared/utils/uploads'
+// What the routes answer, as the app receives it (JSON: dates are ISO strings). Inferred by
+// Nitro from each route's handler (`InternalApi`), never written by hand: change a route and
+// these change with it.
+import type { InternalApi } from 'nitropack/types'
 
-// Shapes of the JSON the routes answer with; dates arrive as ISO strings.
-export interface ProductionRow { id: number; name: string; client: string; reelCount: number; createdAt: string; updatedAt: string }
-export interface ReelRow {
-  id: number; name: string; sourceLabel: string; sourceRange: 'full' | 'studio'; matrix: '601' | '709'
-  signedAt?: string | null; createdAt: string; updatedAt: string
-}
-export interface SpecRef { id?: number | null; name: string; title: string; version: number }
-export interface ReelCounts {
-  total: number; queued: number; analysing: number; done: number; failed: number
-  pass: number; caution: number; fail: number
-  accepted: number; rejected: number; waived: number
-}
-export interface ReelOverviewRow extends ReelRow { counts: ReelCounts & { undecided: number }; lastActivity: string }
-export interface ProductionDetail {
-  id: number; teamId: number; name: string; client: string; createdAt: string; updatedAt: string; role: Role
-  spec: SpecRef; reels: ReelOverviewRow[]
-}
-export interface ReelDetail extends ReelRow {
-  teamId: number; productionId: number; role: Role
-  production: { id: number; name: string }; spec: SpecRef; counts: ReelCounts
-}
-export interface FrameDecisionInfo { decision: Decision; note: string; decidedBy: { id: number; name: string } | null; decidedAt: string }
-export interface FrameListRow {
-  id: number; seq: number; name: string; timecode: string | null; format: FrameFormat; width: number; height: number
-  status: FrameStatus; failReason: string | null; createdAt: string
-  verdict: 'pass' | 'caution' | 'fail' | null
-  lumaMinIre: number | null; lumaMaxIre: number | null; lumaMeanIre: number | null
-  compMinIre: number | null; compMaxIre: number | null; outShare: number | null
-  thumbUrl: string | null; decision: FrameDecisionInfo | null
-}
-export interface FrameListPage { page: number; pageSize: number; total: number; frames: FrameListRow[] }
-export interface MemberRow { userId: number; name: string; email: string; role: Role; since: string }
-export interface InvitationRow { id: number; email: string; role: Role; expiresAt: string; createdAt: string }
-export interface ApiTokenRow { id: number; name: string; role: Role; userId: number; userName: string; createdAt: string; expiresAt: string | null; lastUsedAt: string | null; revokedAt: string | null; mine: boolean }
+/** The JSON a GET route answers. */
+export type ApiGet<R extends keyof InternalApi> = InternalApi[R] extends { get: infer T } ? T : never
+
+export type ProductionListItem = ApiGet<'/api/teams/:teamId/productions'>[number]
+export type ProductionDetail = ApiGet<'/api/productions/:id'>
+export type ReelOverviewRow = ProductionDetail['reels'][number]
+export type ReelDetail = ApiGet<'/api/reels/:id'>
+export type FrameListPage = ApiGet<'/api/reels/:id/frames'>
+export type FrameListRow = FrameListPage['frames'][number]
+export type FrameDecisionInfo = NonNullable<FrameListRow['decision']>
+export type MemberRow = ApiGet<'/api/teams/:teamId/members'>[number]
+export type PendingInvitation = ApiGet<'/api/teams/:teamId/invitations'>[number]
+export type SheetPage = ApiGet<'/api/reels/:id/sheet'>
+export type ApiTokenRow = ApiGet<'/api/teams/:teamId/tokens'>[number]

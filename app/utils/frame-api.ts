@@ -1,101 +1,19 @@
-// Shapes of the frame routes' JSON (dates arrive as ISO strings), for the frame and compare pages.
-import type { AnalysisJson } from '../../shared/utils/report'
-import type { Decision } from '../../shared/utils/decisions'
-import type { Role } from '../../shared/utils/roles'
-import type { FrameFormat, FrameStatus } from '../../shared/utils/uploads'
+// Shapes of the frame routes' JSON for the frame and compare pages, inferred from the routes
+// (see app/types/api.ts): dates arrive as ISO strings.
+import type { ApiGet, FrameListRow } from '../types/api'
+import type { FrameImageKind } from '../../shared/utils/frame-images'
 
-export type FrameImageKind = 'thumb' | 'picture' | 'overlay' | 'waveform-luma' | 'waveform-flat' | 'waveform-rgb' | 'vectorscope'
+export type { FrameImageKind }
 
-export interface FrameHistogramsJson {
-  bins: number
-  rgbCoding: 'source-full' | 'source-studio' | 'studio'
-  y: number[]
-  cb: number[]
-  cr: number[]
-  r: number[]
-  g: number[]
-  b: number[]
-}
+export type FrameDetail = ApiGet<'/api/frames/:id'>
+export type FrameRecord = FrameDetail['frame']
+export type FrameReelView = FrameDetail['reel']
+export type FrameDecisionView = NonNullable<FrameDetail['decision']>
+export type FrameAnalysisView = NonNullable<FrameDetail['analysis']>
+export type FrameHistogramsJson = FrameAnalysisView['histograms']
 
-export type FrameAnalysisView = AnalysisJson & {
-  specVersion: number
-  analysedAt: string
-  durationMs: number
-  histograms: FrameHistogramsJson
-  images: Partial<Record<FrameImageKind, string>>
-}
-
-export interface FrameRecord {
-  id: number
-  reelId: number
-  teamId: number
-  seq: number
-  name: string
-  timecode: string | null
-  format: FrameFormat
-  width: number
-  height: number
-  status: FrameStatus
-  failReason: string | null
-  createdAt: string
-  updatedAt: string
-}
-
-export interface FrameDecisionView {
-  decision: Decision
-  note: string
-  decidedBy: { id: number, name: string } | null
-  decidedAt: string
-}
-
-export interface FrameReelView {
-  id: number
-  name: string
-  sourceLabel: string
-  sourceRange: 'full' | 'studio'
-  matrix: '601' | '709'
-  signedAt: string | null
-  productionId: number
-  productionName: string
-}
-
-export interface FrameDetail {
-  frame: FrameRecord
-  role: Role
-  reel: FrameReelView
-  neighbours: { prevId: number | null, nextId: number | null }
-  decision: FrameDecisionView | null
-  analysis: FrameAnalysisView | null
-}
-
-export interface LineSampleJson {
-  x: number
-  us: number
-  lumaIre: number
-  compMinIre: number
-  compMaxIre: number
-  chromaPpIre: number
-  phaseDeg: number | null
-  r: number
-  g: number
-  b: number
-}
-
-export interface LineResponse {
-  frameId: number
-  width: number
-  height: number
-  matrix: '601' | '709'
-  line: { index: number, samples: LineSampleJson[] }
-}
+export type LineResponse = ApiGet<'/api/frames/:id/line/:n'>
+export type LineSampleJson = LineResponse['line']['samples'][number]
 
 /** One row of GET /api/reels/:id/frames, as far as the frame picker reads it. */
-export interface PickerFrameRow {
-  id: number
-  seq: number
-  name: string
-  timecode: string | null
-  status: FrameStatus
-  verdict: 'pass' | 'caution' | 'fail' | null
-  thumbUrl: string | null
-}
+export type PickerFrameRow = Pick<FrameListRow, 'id' | 'seq' | 'name' | 'timecode' | 'status' | 'verdict' | 'thumbUrl'>

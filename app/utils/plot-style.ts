@@ -1,6 +1,6 @@
 // Colours of the client-drawn plots, taken from the engine's palette so the line plot and the
 // histograms read like the scope images the worker renders.
-import { PALETTE } from '../../shared/engine/render'
+import { PALETTE } from '../../shared/engine/palette'
 
 type Rgb = readonly [number, number, number]
 

@@ -12,7 +12,3 @@ export function waveformPanes(view: WaveformView): Array<{ kind: FrameImageKind,
     case 'rgb': return [{ kind: 'waveform-rgb', label: 'RGB split: R′, G′, B′' }]
   }
 }
-
-export function parseWaveformView(value: unknown): WaveformView {
-  return typeof value === 'string' && (WAVEFORM_VIEWS as readonly string[]).includes(value) ? (value as WaveformView) : 'luma'
-}

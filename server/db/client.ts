@@ -20,6 +20,10 @@ export function createDb(url: string, connectionLimit = 10) {
 }
 
 export type Db = ReturnType<typeof createDb>['db']
+/** A transaction's handle, as `db.transaction` passes it. */
+export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
+/** Either: for helpers that run alone or inside a caller's transaction. */
+export type DbOrTx = Db | Tx
 export { schema }
 
 /** The id of the row an insert created (`$returningId()` types its rows as possibly absent). */

@@ -1,10 +1,14 @@
-import { relations, sql } from 'drizzle-orm'
+import { sql } from 'drizzle-orm'
 import {
   bigint, boolean, char, datetime, double, index, int, json, mysqlEnum, mysqlTable, timestamp, uniqueIndex, varchar,
 } from 'drizzle-orm/mysql-core'
 import { ROLES } from '../../shared/utils/roles'
 import { FRAME_FORMATS, FRAME_STATUSES } from '../../shared/utils/uploads'
 import { DECISIONS } from '../../shared/utils/decisions'
+import type { DeliverySpec } from '../../shared/engine/specs'
+import type { FrameImageKind } from '../../shared/utils/frame-images'
+import type { AnalysisJson, HistogramsJson } from '../../shared/utils/report'
+import type { SheetSummary } from '../lib/sheet-rules'
 
 // MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
 const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
@@ -66,7 +70,7 @@ export const deliverySpecs = mysqlTable('delivery_specs', {
   builtin: varchar('builtin', { length: 64 }),
   name: varchar('name', { length: 120 }).notNull(),
   version: int('version').notNull().default(1),
-  body: json('body').notNull(),
+  body: json('body').$type<DeliverySpec>().notNull(),
   ...timestamps,
 }, (t) => [index('delivery_specs_team_idx').on(t.teamId)])
 
@@ -108,22 +112,6 @@ export const auditLog = mysqlTable('audit_log', {
   details: json('details'),
   createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
 }, (t) => [index('audit_team_idx').on(t.teamId, t.createdAt)])
-
-export const usersRelations = relations(users, ({ many }) => ({ memberships: many(memberships) }))
-export const teamsRelations = relations(teams, ({ many }) => ({ memberships: many(memberships), productions: many(productions) }))
-export const membershipsRelations = relations(memberships, ({ one }) => ({
-  team: one(teams, { fields: [memberships.teamId], references: [teams.id] }),
-  user: one(users, { fields: [memberships.userId], references: [users.id] }),
-}))
-export const productionsRelations = relations(productions, ({ one, many }) => ({
-  team: one(teams, { fields: [productions.teamId], references: [teams.id] }),
-  reels: many(reels),
-  deliverySpec: one(deliverySpecs, { fields: [productions.deliverySpecId], references: [deliverySpecs.id] }),
-}))
-export const reelsRelations = relations(reels, ({ one }) => ({
-  production: one(productions, { fields: [reels.productionId], references: [productions.id] }),
-}))
-
 
 /** A file announced by the browser and given a presigned URL; becomes a frame once confirmed. */
 export const uploads = mysqlTable('uploads', {
@@ -192,17 +180,14 @@ export const analyses = mysqlTable('analyses', {
   compMaxIre: double('comp_max_ire').notNull(),
   outShare: double('out_share').notNull(),
   /** The engine's JSON result (same field names as `npm run analyse -- --json`), without pixel data. */
-  result: json('result').notNull(),
-  histograms: json('histograms').notNull(),
-  images: json('images').notNull(),
+  result: json('result').$type<AnalysisJson>().notNull(),
+  histograms: json('histograms').$type<HistogramsJson>().notNull(),
+  /** The images stored for the frame (served as /api/frames/:id/images/:kind). */
+  images: json('images').$type<FrameImageKind[]>().notNull(),
   durationMs: int('duration_ms').notNull(),
   ...timestamps,
 }, (t) => [uniqueIndex('analyses_frame_uq').on(t.frameId), index('analyses_team_idx').on(t.teamId)])
 
-export const framesRelations = relations(frames, ({ one }) => ({
-  reel: one(reels, { fields: [frames.reelId], references: [reels.id] }),
-  analysis: one(analyses, { fields: [frames.id], references: [analyses.frameId] }),
-}))
 
 /** A reviewer's decision on a frame; one current decision per frame, every change in the audit log. */
 export const decisions = mysqlTable('decisions', {
@@ -233,14 +218,14 @@ export const signoffs = mysqlTable('signoffs', {
   specName: varchar('spec_name', { length: 64 }).notNull(),
   specTitle: varchar('spec_title', { length: 120 }).notNull(),
   specVersion: int('spec_version').notNull(),
-  specBody: json('spec_body').notNull(),
+  specBody: json('spec_body').$type<DeliverySpec>().notNull(),
   engineVersion: varchar('engine_version', { length: 32 }).notNull(),
   sheetStatus: mysqlEnum('sheet_status', SHEET_STATUSES).notNull().default('pending'),
   sheetError: varchar('sheet_error', { length: 500 }),
   pdfKey: varchar('pdf_key', { length: 255 }),
   csvKey: varchar('csv_key', { length: 255 }),
   /** The summary as printed on the sheet (counts and overall result). */
-  summary: json('summary'),
+  summary: json('summary').$type<SheetSummary>(),
   supersededAt: datetime('superseded_at', { mode: 'date', fsp: 3 }),
   supersededBy: ref('superseded_by').references(() => users.id, { onDelete: 'set null' }),
   reopenReason: varchar('reopen_reason', { length: 1000 }),

@@ -1,9 +1,8 @@
 import { and, eq, inArray } from 'drizzle-orm'
-import type { Db } from '../db/client'
+import type { Tx } from '../db/client'
 import * as t from '../db/schema'
 import type { Decision } from '../../shared/utils/decisions'
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 
 /**
  * Records a decision on analysed frames of one reel (the reel whose open state was checked) (upsert, one per frame) and audits each

@@ -2,12 +2,10 @@
 // auto-imports here). The rows are read live: a signed reel is read-only, so while a
 // sign-off stands its frames, analyses and decisions cannot change under it.
 import { and, asc, desc, eq, isNull } from 'drizzle-orm'
-import type { Db } from '../db/client'
+import type { Db, DbOrTx } from '../db/client'
 import * as t from '../db/schema'
-import type { AnalysisJson } from '../../shared/utils/report'
 import type { SheetReason, SheetRow } from './sheet-rules'
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 export type SignoffRow = typeof t.signoffs.$inferSelect
 
 /** Object keys from ids only, beside the reel's other objects; one pair per sign-off. */
@@ -16,7 +14,7 @@ export const sheetKeys = {
   csv: (teamId: number, reelId: number, signoffId: number) => `teams/${teamId}/reels/${reelId}/sheets/${signoffId}.csv`,
 }
 
-export async function loadSheetRows(db: Db | Tx, reelId: number): Promise<SheetRow[]> {
+export async function loadSheetRows(db: DbOrTx, reelId: number): Promise<SheetRow[]> {
   const rows = await db.select({
     frameId: t.frames.id, seq: t.frames.seq, name: t.frames.name, timecode: t.frames.timecode,
     status: t.frames.status, failReason: t.frames.failReason,
@@ -35,12 +33,12 @@ export async function loadSheetRows(db: Db | Tx, reelId: number): Promise<SheetR
     // An analysis row can outlive a status flip; the sheet trusts the row, not the flag.
     verdict: r.status === 'done' ? r.verdict : null,
     note: r.note ?? '',
-    reasons: ((result as AnalysisJson | null)?.reasons ?? []).map((x): SheetReason => ({ limit: x.limit, message: x.message, severity: x.severity })),
+    reasons: (result?.reasons ?? []).map((x): SheetReason => ({ limit: x.limit, message: x.message, severity: x.severity })),
   }))
 }
 
 /** The standing sign-off of a reel (not superseded), if any. */
-export async function currentSignoff(db: Db | Tx, reelId: number): Promise<SignoffRow | undefined> {
+export async function currentSignoff(db: DbOrTx, reelId: number): Promise<SignoffRow | undefined> {
   const [row] = await db.select().from(t.signoffs)
     .where(and(eq(t.signoffs.reelId, reelId), isNull(t.signoffs.supersededAt)))
     .orderBy(desc(t.signoffs.id)).limit(1)
@@ -80,5 +78,3 @@ export async function loadSheetContext(db: Db, signoffId: number) {
     return { ...head, rows }
   })
 }
-
-export type SheetContext = NonNullable<Awaited<ReturnType<typeof loadSheetContext>>>

@@ -2,7 +2,7 @@
 // owners), else the default built-in. Returned with its version for the record.
 import { eq } from 'drizzle-orm'
 import { BUILTIN_SPECS, DEFAULT_SPEC_NAME, DeliverySpecSchema, builtinSpec, type DeliverySpec } from '../../shared/engine'
-import type { Db } from '../db/client'
+import type { Db, DbOrTx } from '../db/client'
 import * as t from '../db/schema'
 
 export interface ResolvedSpec {
@@ -12,7 +12,7 @@ export interface ResolvedSpec {
   version: number
 }
 
-export async function specForProduction(db: Db, productionId: number): Promise<ResolvedSpec> {
+export async function specForProduction(db: DbOrTx, productionId: number): Promise<ResolvedSpec> {
   const [row] = await db.select({ spec: t.deliverySpecs }).from(t.productions)
     .innerJoin(t.deliverySpecs, eq(t.deliverySpecs.id, t.productions.deliverySpecId))
     .where(eq(t.productions.id, productionId)).limit(1)

@@ -70,6 +70,13 @@ export class Storage {
     return res.Body!.transformToByteArray()
   }
 
+  /** Bytes [start, end) of an object. */
+  async getRange(key: string, start: number, end: number): Promise<Uint8Array> {
+    if (end <= start) return new Uint8Array(0)
+    const res = await this.client.send(new GetObjectCommand({ Bucket: this.bucket, Key: key, Range: `bytes=${start}-${end - 1}` }))
+    return res.Body!.transformToByteArray()
+  }
+
   /** Size of an object, or null when it does not exist. */
   async size(key: string): Promise<number | null> {
     try {
@@ -116,4 +123,6 @@ export const keys = {
   upload: (teamId: number, reelId: number, uploadId: number) => `teams/${teamId}/reels/${reelId}/uploads/${uploadId}`,
   original: (teamId: number, reelId: number, sha256: string) => `teams/${teamId}/reels/${reelId}/originals/${sha256}`,
   image: (teamId: number, frameId: number, kind: string) => `teams/${teamId}/frames/${frameId}/${kind}.png`,
+  /** The frame's line data (server/lib/frame-lines.ts), read a line at a time for line plots. */
+  lines: (teamId: number, frameId: number) => `teams/${teamId}/frames/${frameId}/lines.bin`,
 }

@@ -1,13 +1,12 @@
 import { and, eq } from 'drizzle-orm'
-import type { Db } from '../db/client'
+import type { DbOrTx } from '../db/client'
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 
 /**
  * Finds an invitation by its token and says why it cannot be used, if so.
  * Expired, used and revoked links answer 410 with a reason a person can act on.
  */
-export async function findInvitation(db: Db | Tx, token: string, lock = false) {
+export async function findInvitation(db: DbOrTx, token: string, lock = false) {
   const q = db.select({ inv: tables.invitations, teamName: tables.teams.name })
     .from(tables.invitations)
     .innerJoin(tables.teams, eq(tables.teams.id, tables.invitations.teamId))

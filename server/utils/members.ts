@@ -2,11 +2,10 @@ import { and, count, eq } from 'drizzle-orm'
 import { z } from 'zod'
 import type { Role } from '../../shared/utils/roles'
 import { IdSchema } from '../../shared/utils/validation'
-import type { Db } from '../db/client'
+import type { Tx } from '../db/client'
 
 export const MemberParams = z.object({ teamId: IdSchema, userId: IdSchema })
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 
 /**
  * The membership row (locked) of a user in a team, or 404; and refuses a change that would

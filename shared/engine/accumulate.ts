@@ -6,7 +6,7 @@ import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 import type { LevelDistributions } from './types'
 import type { MaskLimits } from './mask'
 
-/** Composite limits behind shares.compositeOut: −20…+120 IRE (REFERENCE.md §6, NTSC practice). */
+/** Composite limits behind shares.compositeOut: −20…+120 IRE (+120: ITU-R BT.1700 peak level; −20: NTSC broadcast practice, no standard found). */
 export const COMPOSITE_OUT_LOW_IRE = -20
 export const COMPOSITE_OUT_HIGH_IRE = 120
 

@@ -1,9 +1,9 @@
-import { EngineInputError, makeRowSource, STRIPE_ALIGN } from './decode'
+import { makeRowSource, STRIPE_ALIGN } from './decode'
 import type { RowSource } from './decode'
 import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
 import type { Accumulators, Coef, Densities, Totals } from './accumulate'
 import { fastPass } from './fast'
-import { MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
+import { MATRICES, resolveMatrix, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre } from './scales'
 import { builtinSpec, DEFAULT_SPEC_NAME } from './specs'
 import type { DeliverySpec } from './specs'
@@ -12,7 +12,7 @@ import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP, percentile, shareAbove, shareBelow }
 import { waveformGeometry, waveformRowOffsets, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP, WAVEFORM_ROWS } from './waveform'
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
 import { MASK_HIGH, MASK_LOW, maskGeometry, maskLimits } from './mask'
-import type { AnalyseOptions, FrameAnalysis, FrameInput, Histograms, LevelDistributions, MatrixName } from './types'
+import type { AnalyseOptions, FrameAnalysis, FrameInput, Histograms, LevelDistributions } from './types'
 
 export { COMPOSITE_OUT_HIGH_IRE, COMPOSITE_OUT_LOW_IRE } from './accumulate'
 
@@ -31,12 +31,6 @@ const DENSITY_STRIPE = 2 * STRIPE_ALIGN
 // Coarse Cb/Cr histograms are filled with a margin of 128 codes each side and folded into
 // the published 0..bins−1 range at the end, so the hot loop needs no clamping.
 const COARSE_PAD = 128
-
-export function resolveMatrix(m: string | undefined): MatrixName {
-  if (m === undefined || m === '601') return '601'
-  if (m === '709') return '709'
-  throw new EngineInputError(`unknown matrix "${m}" (use 601 or 709)`)
-}
 
 export function analyseFrame(input: FrameInput, opts: AnalyseOptions = {}): FrameAnalysis {
   return analyse(input, opts, true)
@@ -157,7 +151,7 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
     compositeIre: { min: code8ToIre(t.compMin), max: code8ToIre(t.compMax) },
     chroma: {
       cbMin: t.cbMin, cbMax: t.cbMax, crMin: t.crMin, crMax: t.crMax,
-      // t.cMax is the amplitude in codes; p-p on the setup scale is 2·92.5·C (REFERENCE.md §4).
+      // t.cMax is the amplitude in codes; p-p on the setup scale is 2·92.5·C (SMPTE 170M IRE scale with setup — memory; computed).
       ppMaxIre: 2 * 92.5 * t.cMax / 219,
     },
     shares: {

@@ -1,9 +1,8 @@
 import { MATRICES } from './matrix'
 import type { FrameInput, MatrixName, SourceRange } from './types'
+import { EngineInputError } from './errors'
 
-export class EngineInputError extends Error {
-  override name = 'EngineInputError'
-}
+export { EngineInputError }
 
 /** One line of the picture in the engine's working form. */
 export interface RowBuffers {
@@ -30,7 +29,7 @@ export interface RowSource {
   height: number
   bitDepth: number
   range: SourceRange
-  /** 256 for 8-bit sources, 1024 above (DESIGN.md "Measurement"). */
+  /** 256 for 8-bit sources, 1024 above: one bin per code of an 8- or 10-bit picture. */
   histBins: 256 | 1024
   rgbCoding: 'source-full' | 'source-studio' | 'studio'
   /** R, G, B histogram bin = round(rgbHistOffset + rgbHistScale · R'). */
@@ -97,7 +96,7 @@ export function makeRowSource(input: FrameInput, matrix: MatrixName): RowSource 
       need(data.length, width * height * channels, 'RGB data')
       const maxCode = bitDepth === 8 ? 255 : 65535
       const k = bitDepth === 8 ? 1 : 256
-      // full: 0..max = black..white; studio: 16..235 × 2^(n−8) = black..white (DESIGN.md).
+      // full: 0..max = black..white; studio: 16..235 × 2^(n−8) = black..white (ITU-R BT.601-7 Table 3 coding ranges — clause from memory).
       const scale = range === 'full' ? 1 / maxCode : 1 / (219 * k)
       const offset = range === 'full' ? 0 : -16 * k / (219 * k)
       const bins = bitDepth === 8 ? 256 : 1024

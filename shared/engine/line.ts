@@ -1,10 +1,9 @@
 import { EngineInputError, makeRowBuffers, makeRowSource } from './decode'
-import { resolveMatrix } from './analyse'
-import { MATRICES, U_WEIGHT, V_WEIGHT } from './matrix'
+import { MATRICES, resolveMatrix, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre } from './scales'
 import type { FrameInput, LinePlot, LineSample, MatrixName } from './types'
 
-/** BT.601 luma sampling rate; 720 samples span 53.333 µs (REFERENCE.md §5). */
+/** ITU-R BT.601 luma sampling rate; 720 samples span 53.333 µs (computed: 720 / 13.5 MHz). */
 export const SAMPLE_RATE_MHZ = 13.5
 export const SD_ACTIVE_SAMPLES = 720
 

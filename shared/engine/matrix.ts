@@ -1,3 +1,4 @@
+import { EngineInputError } from './errors'
 import type { MatrixName } from './types'
 
 export interface MatrixCoefficients {
@@ -9,14 +10,14 @@ export interface MatrixCoefficients {
   crDiv: number
 }
 
-// ITU-R BT.601-7 §2.5 and ITU-R BT.709-6 Part 2 items 3.2–3.4 (REFERENCE.md §1, §2).
+// ITU-R BT.601-7 §2.5 (clause number from memory) and ITU-R BT.709-6 Part 2 items 3.2–3.4.
 export const MATRICES: Record<MatrixName, MatrixCoefficients> = {
   601: { kr: 0.299, kg: 0.587, kb: 0.114, cbDiv: 1.772, crDiv: 1.402 },
   709: { kr: 0.2126, kg: 0.7152, kb: 0.0722, cbDiv: 1.8556, crDiv: 1.5748 },
 }
 
 // SMPTE 170M weighting of the colour-difference signals for the composite equivalent
-// (REFERENCE.md §4, from memory).
+// (values from memory).
 export const U_WEIGHT = 0.492111
 export const V_WEIGHT = 0.877283
 
@@ -84,4 +85,10 @@ export function barTargets(amplitude: number, matrix: MatrixName = '601'): Array
     const ce = compositeFromPbPr(p.pb, p.pr, matrix)
     return { name, u: ce.u, v: ce.v }
   })
+}
+
+export function resolveMatrix(m: string | undefined): MatrixName {
+  if (m === undefined || m === '601') return '601'
+  if (m === '709') return '709'
+  throw new EngineInputError(`unknown matrix "${m}" (use 601 or 709)`)
 }

@@ -1,28 +1,8 @@
-import { resolveMatrix } from './analyse'
-import { barTargets } from './matrix'
+import { barTargets, resolveMatrix } from './matrix'
+import { PALETTE, type Rgb } from './palette'
 import { ireToCode8 } from './scales'
 import { waveformRow } from './waveform'
 import type { Histograms, MatrixName, RgbaImage, VectorscopeDensity, WaveformDensity } from './types'
-
-type Rgb = readonly [number, number, number]
-
-/** Linewise's own palette (a dark grading-room look; not taken from any instrument). */
-export const PALETTE = {
-  background: [13, 16, 22] as Rgb,
-  graticule: [54, 62, 76] as Rgb,
-  graticuleLabel: [120, 132, 150] as Rgb,
-  /** Setup (7.5 IRE) and white (100 IRE) lines, and the bar targets. */
-  keyLine: [222, 158, 72] as Rgb,
-  lumaTrace: [150, 232, 214] as Rgb,
-  flatTrace: [236, 196, 128] as Rgb,
-  red: [236, 84, 84] as Rgb,
-  green: [96, 214, 120] as Rgb,
-  blue: [100, 140, 250] as Rgb,
-  vectorTrace: [196, 226, 255] as Rgb,
-  /** Range overlay: levels above a limit, and below one. */
-  overlayHigh: [255, 48, 150] as Rgb,
-  overlayLow: [24, 170, 255] as Rgb,
-} as const
 
 // A 3×5 pixel font of our own, enough for graticule labels.
 const GLYPHS: Record<string, string> = {
@@ -218,7 +198,7 @@ function vectorscopeLayers(v: VectorscopeDensity, matrix: MatrixName, scale: num
       under.set(Math.round(cx + rpx * Math.cos(a)), Math.round(cy - rpx * Math.sin(a)), PALETTE.graticule)
     }
   }
-  // Burst sits at 180° (REFERENCE.md §4): a short stub on the −U axis.
+  // Burst sits at 180° (SMPTE 170M — memory): a short stub on the −U axis.
   under.hline(px(-0.15), cx, cy + 1, PALETTE.graticuleLabel)
 
   // Targets are painted over the trace, so they stay legible where the picture has bars.

@@ -9,14 +9,14 @@ export const BLACK_CODE8 = 16
 export const WHITE_CODE8 = 235
 export const LUMA_SPAN_CODE8 = WHITE_CODE8 - BLACK_CODE8
 
-/** NTSC System M with setup: black at 7.5 IRE, white at 100 IRE (REFERENCE.md §4). */
+/** NTSC System M with setup: black at 7.5 IRE, white at 100 IRE (SMPTE 170M — memory). */
 export const SETUP_IRE = 7.5
 export const SETUP_SPAN_IRE = 100 - SETUP_IRE
 
 /**
  * The `mv` scale follows the component analogue convention: black 0 mV, white 700 mV.
  * The `mvNtsc` scale follows NTSC composite with setup: 140 IRE = 1 V, so 1 IRE = 7.143 mV,
- * blanking 0 mV, black 53.6 mV, white 714.3 mV (REFERENCE.md §4).
+ * blanking 0 mV, black 53.6 mV, white 714.3 mV (SMPTE 170M, 1 IRE = 1/140 V — memory; computed).
  */
 export const MV_CONVENTION = 'component: black 0 mV, white 700 mV' as const
 export const MV_COMPONENT_WHITE = 700
@@ -30,6 +30,28 @@ export const SCALE_UNITS: Record<LevelScale, string> = {
   pct: '%',
   code8: '',
   code10: '',
+}
+
+/** Short names for column headings and the command line; SCALE_LABELS gives the long form. */
+export const SCALE_SHORT: Record<LevelScale, string> = {
+  ire: 'IRE',
+  ire0: 'IRE, no setup',
+  mv: 'mV',
+  mvNtsc: 'mV NTSC',
+  pct: '%',
+  code8: '8-bit',
+  code10: '10-bit',
+}
+
+/** The unit written after a spec's limit (the sheet, on screen and in the PDF). */
+export const SCALE_LIMIT_UNITS: Record<LevelScale, string> = {
+  ire: 'IRE',
+  ire0: 'IRE (no setup)',
+  mv: 'mV',
+  mvNtsc: 'mV (NTSC)',
+  pct: '%',
+  code8: '(8-bit code)',
+  code10: '(10-bit code)',
 }
 
 export const SCALE_LABELS: Record<LevelScale, string> = {
@@ -85,11 +107,6 @@ export function fromScale(value: number, scale: LevelScale): number {
   }
 }
 
-/** A difference (e.g. chroma peak-to-peak) given in Y' units (0..1), on a scale. */
-export function spanToScale(unitSpan: number, scale: LevelScale): number {
-  return toScale(unitToCode8(unitSpan), scale) - toScale(BLACK_CODE8, scale)
-}
-
 export function scaleDigits(scale: LevelScale): number {
   switch (scale) {
     case 'ire': case 'ire0': case 'pct': return 1
@@ -109,11 +126,4 @@ export function formatShare(share: number): string {
   if (share === 0) return '0 %'
   const pct = share * 100
   return `${pct < 0.01 ? pct.toExponential(1) : pct < 1 ? pct.toFixed(3) : pct.toFixed(2)} %`
-}
-
-/** Every scale at once, for the values panel. */
-export function allScales(code8: number): Record<LevelScale, number> {
-  const out = {} as Record<LevelScale, number>
-  for (const s of LEVEL_SCALES) out[s] = toScale(code8, s)
-  return out
 }

@@ -7,6 +7,8 @@ export type MembershipRow = typeof s.memberships.$inferSelect
 export type InvitationRow = typeof s.invitations.$inferSelect
 export type ProductionRow = typeof s.productions.$inferSelect
 export type ReelRow = typeof s.reels.$inferSelect
+export type FrameRow = typeof s.frames.$inferSelect
+export type AnalysisRow = typeof s.analyses.$inferSelect
 export type AuditRow = typeof s.auditLog.$inferSelect
 
 /** A user as the API shows it: never the password hash. */

@@ -43,7 +43,7 @@ function meanCode(h: ArrayLike<number>): { mean: number, count: number } {
  * The mean chroma of a frame from its Cb and Cr histograms. The mean is linear, so the mean
  * of each colour-difference histogram on its own gives the mean (Pb, Pr) vector exactly;
  * its angle is the frame's average hue, and its length how far that average leans from grey.
- * Bin i of a `bins`-bin histogram is code i at depth log2(bins) (REFERENCE.md §1).
+ * Bin i of a `bins`-bin histogram is code i at depth log2(bins) (ITU-R BT.601-7 Table 3 coding ranges — memory).
  */
 export function meanChroma(h: ChromaHistograms, matrix: MatrixName = '601'): MeanChroma | null {
   const depth = Math.round(Math.log2(h.bins))
@@ -55,7 +55,7 @@ export function meanChroma(h: ChromaHistograms, matrix: MatrixName = '601'): Mea
   const meanPb = (cb.mean / k - 128) / 224
   const meanPr = (cr.mean / k - 128) / 224
   const m = MATRICES[matrix]
-  // B'−Y' = cbDiv·Pb and R'−Y' = crDiv·Pr, then the SMPTE 170M weights (REFERENCE.md §4).
+  // B'−Y' = cbDiv·Pb and R'−Y' = crDiv·Pr, then the SMPTE 170M weights (memory).
   const u = U_WEIGHT * m.cbDiv * meanPb
   const v = V_WEIGHT * m.crDiv * meanPr
   const c = Math.hypot(u, v)

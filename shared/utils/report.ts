@@ -1,7 +1,7 @@
 // The analysis as JSON: the field names of `npm run analyse -- --json`, which scripts read.
 // The worker stores exactly this, and GET /api/frames/:id returns it.
 import { ENGINE_VERSION } from '../engine'
-import type { FrameAnalysis, LinePlot } from '../engine/types'
+import type { FrameAnalysis, Histograms, LinePlot } from '../engine/types'
 
 const r3 = (v: number) => Math.round(v * 1000) / 1000
 const r6 = (v: number) => Math.round(v * 1e6) / 1e6
@@ -34,3 +34,10 @@ export function lineJson(line: LinePlot) {
     })),
   }
 }
+
+/** The histograms as stored with the analysis and drawn by the frame page (no level distributions). */
+export function histogramsJson(h: Histograms) {
+  return { bins: h.bins, rgbCoding: h.rgbCoding, y: [...h.y], cb: [...h.cb], cr: [...h.cr], r: [...h.r], g: [...h.g], b: [...h.b] }
+}
+
+export type HistogramsJson = ReturnType<typeof histogramsJson>

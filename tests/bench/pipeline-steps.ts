@@ -1,5 +1,5 @@
 // Where one frame's time goes inside the analyse job, step by step, on one thread: the
-// worker's own code (decodeBytes, analyseFrame, renderFrameImages from workers/lib) with a
+// worker's own code (decodeBytes, analyseFrame, renderFrameImages, encodeFrameLines) with a
 // timer around each step, on the noisy 1080p PNGs the pipeline benchmark uploads. S3 and
 // MariaDB are left out (the pipeline benchmark measures them in place).
 // Run: npx tsx tests/bench/pipeline-steps.ts   (ROUNDS=n for more rounds)
@@ -11,7 +11,8 @@
 // Not a test: the numbers vary with the machine and its load.
 import sharp from 'sharp'
 import { AnalysisScratch, analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine/index'
-import { decodeBytes } from '../../workers/lib/decode-file'
+import { decodeBytes } from '../../server/lib/decode-file'
+import { encodeFrameLines } from '../../server/lib/frame-lines'
 import { configureSharp, renderFrameImages, type Step } from '../../workers/lib/frame-images'
 import { framePixels, HEIGHT, WIDTH } from './pipeline-frames.mjs'
 
@@ -46,7 +47,8 @@ for (let i = 0; i <= ROUNDS; i++) {
   // As the worker does: density buffers reused from frame to frame.
   const a = await step('engine', () => analyseFrame(input, { matrix: '601', spec, keepDensities: true, scratch }))
   const images = await renderFrameImages(input, a, '601', step)
-  if (i === ROUNDS) sizes = Object.fromEntries(Object.entries(images).map(([k, v]) => [k, v.data.length]))
+  const lines = await step('line data', () => encodeFrameLines(input))
+  if (i === ROUNDS) sizes = { ...Object.fromEntries(Object.entries(images).map(([k, v]) => [k, v.data.length])), lines: lines.length }
   if (i === 0) times.clear()
 }
 

@@ -3,15 +3,16 @@
 // bars, which pass), opens the frame, plots a line, switches units; a reviewer waives the
 // hot frame; the editor's own attempt is refused; the compare page sets the two frames side
 // by side. Screens go to test-results/screens/ for a person to look at.
-// Sources of the expected figures: REFERENCE.md §1 (codes 16/235, 64/940), §3 (bar codes),
-// §4 (IRE levels, the 75 %/100 % bar table — computed there, SMPTE 170M weights from memory,
-// tolerance ≥ 0.5 IRE and 1° as §4 asks), §6 (composite limits of the NTSC spec — practice).
+// Sources of the expected figures: ITU-R BT.601-7 Table 3 (codes 16/235, 64/940 — memory),
+// ITU-R BT.801-1 Table 1 (bar codes — memory; computed from the BT.601 equations),
+// SMPTE 170M and EG 1 (IRE levels, the 75 %/100 % bar table — computed, SMPTE 170M weights from memory,
+// tolerance ≥ 0.5 IRE and 1° as tables from rounded coefficients need), composite limits of the NTSC spec (NTSC practice).
 import type { Browser, BrowserContext, Page } from 'playwright-core'
 import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/db/demo'
+import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/seed/demo'
 import { lineAtOffset } from '../../app/utils/picture'
-import { Client, signedIn } from '../support/api'
+import { type Client, signedIn } from '../support/api'
 import { launchBrowser, screen } from '../support/browser'
 import { APP_URL } from '../support/env'
 
@@ -28,7 +29,7 @@ const BAR_ORDER: Rgb[] = [[1, 1, 1], [1, 1, 0], [0, 1, 1], [0, 1, 0], [1, 0, 1],
 /**
  * Eight equal bars over the top two thirds (white, yellow, cyan, green, magenta, red, blue,
  * black at `barCode`), and two patches below. Equal bars average to grey (their Cb and Cr
- * codes sum to 8 × 128, REFERENCE.md §3), so the frame's mean hue is the hue of `patch`.
+ * codes sum to 8 × 128, ITU-R BT.801-1 Table 1 — memory; computed), so the frame's mean hue is the hue of `patch`.
  */
 function frame(barCode: number, patch: Rgb, right: Rgb): Promise<Buffer> {
   const data = Buffer.alloc(W * H * 3)
@@ -113,7 +114,7 @@ describe('the frame page', () => {
     await signIn(ed, editor)
     await openFrame(ed, hotId)
     expect(await ed.getByTestId('verdict-badge').first().getAttribute('data-verdict')).toBe('fail')
-    // §4 (computed there): 100 % bars reach +130.8 and −23.3 IRE, beyond the spec's +120 / −20 (§6, practice).
+    // SMPTE EG 1 bars (computed): 100 % bars reach +130.8 and −23.3 IRE, beyond the spec's +120 / −20 (NTSC practice).
     const limits = await ed.getByTestId('verdict-reason').evaluateAll((els) => els.map((e) => e.getAttribute('data-limit')))
     expect(limits.sort()).toEqual(['composite-max', 'composite-min'])
     const high = await ed.locator('[data-testid="verdict-reason"][data-limit="composite-max"]').innerText()
@@ -141,7 +142,7 @@ describe('the frame page', () => {
     // The marker sits on the picture at the chosen line.
     const marker = (await ed.getByTestId('line-marker').boundingBox())!
     expect(Math.abs(marker.y - (box.y + ((want + 0.5) / H) * box.height))).toBeLessThan(2)
-    // Hovering the start of the line reads the first bar: white, 100 IRE (§4), no chroma.
+    // Hovering the start of the line reads the first bar: white, 100 IRE (SMPTE 170M), no chroma.
     const cb = (await chart.boundingBox())!
     await chart.hover({ position: { x: 60, y: cb.height / 2 } })
     await chart.hover({ position: { x: 70, y: cb.height / 2 } })
@@ -176,7 +177,7 @@ describe('the frame page', () => {
 
   it('switches the values between units and keeps the choice', async () => {
     const max = ed.getByTestId('value-luma-max')
-    // §4: full-range 255 is white, 100 IRE with setup; §1: code 235, 940 at 10 bits.
+    // SMPTE 170M: full-range 255 is white, 100 IRE with setup; BT.601 Table 3: code 235, 940 at 10 bits.
     expect(await max.textContent()).toBe('100.0 IRE')
     expect(await ed.getByTestId('value-luma-min').textContent()).toBe('7.5 IRE')
     await ed.getByTestId('unit-select').selectOption('code8')
@@ -190,7 +191,7 @@ describe('the frame page', () => {
     await screen(ed, 'frame-04-values-in-codes')
     await openFrame(ed, hotId)
     await expect.poll(() => ed.getByTestId('value-luma-max').textContent()).toBe('235')
-    // Composite extremes read through the luma code: 130.8 IRE lies above code 235 (§4).
+    // Composite extremes read through the luma code: 130.8 IRE lies above code 235 (SMPTE 170M).
     expect(Number(await ed.getByTestId('value-composite-max').textContent())).toBeGreaterThan(235)
   })
 
@@ -256,18 +257,18 @@ describe('the compare page', () => {
     expect(await rv.getByTestId('compare-name-a').innerText()).toBe('B012_bars100.png')
     expect(await rv.getByTestId('compare-name-b').innerText()).toBe('B013_bars75.png')
     const cell = (row: string, col: string) => rv.getByTestId(`diff-${row}`).getByTestId(col).innerText()
-    // Black: both frames hold a black bar at 7.5 IRE (§4).
+    // Black: both frames hold a black bar at 7.5 IRE (SMPTE 170M).
     expect(await cell('black', 'diff-a')).toBe('7.5 IRE')
     expect(await cell('black', 'diff-b')).toBe('7.5 IRE')
     expect(await cell('black', 'diff-delta')).toBe('±0.0 IRE')
-    // White: 100 IRE against 75 % grey, 76.9 IRE in the §4 table (±0.5 IRE).
+    // White: 100 IRE against 75 % grey, 76.9 IRE in the SMPTE EG 1 bar table (±0.5 IRE).
     expect(await cell('white', 'diff-a')).toBe('100.0 IRE')
     const whiteB = parseFloat(await cell('white', 'diff-b'))
     expect(Math.abs(whiteB - 76.9)).toBeLessThanOrEqual(0.5)
     const whiteDelta = (await cell('white', 'diff-delta')).replace('−', '-')
     expect(Math.abs(parseFloat(whiteDelta) - (76.9 - 100))).toBeLessThanOrEqual(0.5)
     // Mean hue: the bars average to grey, so each frame's mean hue is its patch's: 75 % yellow
-    // 167.1° and 75 % red 103.5° (§4 table, ±1°); B − A = −63.6°.
+    // 167.1° and 75 % red 103.5° (SMPTE EG 1 bar table, ±1°); B − A = −63.6°.
     const hueA = parseFloat(await cell('hue', 'diff-a'))
     const hueB = parseFloat(await cell('hue', 'diff-b'))
     expect(Math.abs(hueA - 167.1)).toBeLessThanOrEqual(1)
@@ -287,7 +288,7 @@ describe('the compare page', () => {
   it('gives the differences in the unit chosen, and the waveform mode applies to both sides', async () => {
     await rv.getByTestId('unit-select').selectOption('code8')
     await expect.poll(() => rv.getByTestId('diff-white').getByTestId('diff-a').innerText()).toBe('235')
-    // §1/§3: 75 % grey is code 180; the difference is 180 − 235 = −55 codes (±1 code, §3).
+    // BT.601 Table 3 / BT.801-1 Table 1: 75 % grey is code 180; the difference is 180 − 235 = −55 codes (±1 code, BT.801-1 Table 1).
     const delta = parseFloat((await rv.getByTestId('diff-white').getByTestId('diff-delta').innerText()).replace('−', '-'))
     expect(Math.abs(delta - (180 - 235))).toBeLessThanOrEqual(1)
     await rv.getByTestId('waveform-mode-rgb').check({ force: true })

@@ -4,7 +4,7 @@
 import { randomBytes } from 'node:crypto'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/db/demo'
+import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/seed/demo'
 import { launchBrowser, screen } from '../support/browser'
 import { APP_URL } from '../support/env'
 import { linkIn, waitForMail } from '../support/mail'

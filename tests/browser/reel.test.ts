@@ -13,7 +13,7 @@
 //  - yellow: the ramp with a patch R = G = 235, B = 110. With R′ = G′ = 1, B′ = 94/219 = 0.429:
 //    Y′ = 0.886 + 0.114·0.429 = 0.935; U = 0.492111·(B′ − Y′) = −0.249, V = 0.877283·(R′ − Y′) = 0.057;
 //    C = 0.255; Y′ + C = 1.190 → 7.5 + 92.5·1.190 = 117.6 IRE composite, inside the caution band → caution.
-//  (REFERENCE.md §4 for the IRE scale and U/V weights; `npm run analyse -- FILE --range studio` gives
+//  (SMPTE 170M — memory — for the IRE scale and U/V weights; `npm run analyse -- FILE --range studio` gives
 //  the same three verdicts, 106.3 IRE and 117.6 IRE.)
 // The fourth PNG is the yellow one cut after 1,500 bytes: its header (320 × 180) passes the upload
 // checks, so it becomes a frame, and the worker then fails to decode it and says why.
@@ -21,7 +21,7 @@ import { randomBytes } from 'node:crypto'
 import sharp from 'sharp'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_PRODUCTION, DEMO_USERS } from '../../server/db/demo'
+import { DEMO_PRODUCTION, DEMO_USERS } from '../../server/seed/demo'
 import { launchBrowser, screen } from '../support/browser'
 import { APP_URL } from '../support/env'
 

@@ -1,7 +1,7 @@
 // Faults in the middle of a batch: a worker killed with SIGKILL, Redis stopped while files
 // arrive (and restarted empty: it runs with --save ''), MariaDB restarted while the worker
 // writes. Each time every stored frame must end `done` with exactly one analysis, and
-// every refused file must leave nothing behind (DESIGN.md "Safety and trust").
+// every refused file must leave nothing behind (an upload is stored and queued, or refused with a reason).
 // Services are always restored, and the file ends with one worker of default settings.
 import { createHash, randomBytes } from 'node:crypto'
 import { and, count, countDistinct, eq, inArray } from 'drizzle-orm'

@@ -1,12 +1,18 @@
 // Upload → queue → worker → results through the real API, S3 fake, Redis and MariaDB.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine'
+import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME, linePlot } from '../../shared/engine'
 import { analysisJson, lineJson } from '../../shared/utils/report'
-import { linePlot } from '../../shared/engine'
-import { decodeBytes } from '../../workers/lib/decode-file'
+import { Queue } from 'bullmq'
+import { eq } from 'drizzle-orm'
+import { Redis } from 'ioredis'
+import * as t from '../../server/db/schema'
+import { decodeBytes } from '../../server/lib/decode-file'
+import { keys, Storage, storageConfigFromEnv } from '../../server/lib/storage'
+import { QUEUE_ANALYSE, type AnalyseJob } from '../../shared/utils/queues'
+import { queueMissingViews } from '../../workers/sweeper'
 import { Client } from '../support/api'
 import { APP_URL } from '../support/env'
-import { closeDb, createTeamWithRoles } from '../support/fixtures'
+import { closeDb, createTeamWithRoles, db } from '../support/fixtures'
 import { png16, png8, still, uyvy, v210 } from '../support/images'
 
 type Team = Awaited<ReturnType<typeof createTeamWithRoles>>
@@ -90,7 +96,7 @@ describe('upload → analysis', () => {
     const line = await editor.get(`/api/frames/${fa.frame.id}/line/100`)
     expect(line.status).toBe(200)
     expect(line.body.line).toEqual(lineJson(linePlot(await decodeBytes(u, { raw: 'uyvy', width: 720, height: 486 }), 100, { matrix: '601' })))
-    // 720 samples at 13.5 MHz: the last sample starts at 719 / 13.5 µs (BT.601 sampling, REFERENCE.md §5).
+    // 720 samples at 13.5 MHz: the last sample starts at 719 / 13.5 µs (ITU-R BT.601 sampling, computed).
     expect(line.body.line.samples.at(-1).us).toBeCloseTo(719 / 13.5, 3)
     expect((await editor.get(`/api/frames/${fa.frame.id}/line/486`)).status).toBe(400)
 
@@ -100,11 +106,48 @@ describe('upload → analysis', () => {
     expect(img.status).toBe(200)
     expect(img.headers.get('content-type')).toBe('image/png')
     expect([...new Uint8Array(await img.arrayBuffer()).subarray(0, 4)]).toEqual([0x89, 0x50, 0x4e, 0x47])
-    // The viewing copy of a raw capture is made on first request: a JPEG at the frame's size.
+    // The viewing copy of a raw capture, made by the worker: a JPEG at the frame's size.
     const pic = await fetch(new URL(`/api/frames/${fa.frame.id}/images/picture`, APP_URL()), { headers: { cookie: editor.cookieHeader() } })
     expect(pic.headers.get('content-type')).toBe('image/jpeg')
     const meta = await (await import('sharp')).default(new Uint8Array(await pic.arrayBuffer())).metadata()
     expect([meta.width, meta.height]).toEqual([720, 486])
+  })
+
+  it('gives a frame analysed before viewing copies and line data were stored both, through a job the worker runs', async () => {
+    const reelId = await newReel()
+    const bytes = await png8(200, 30, 91)
+    const res = await upload(reelId, [{ name: 'older.png', bytes }])
+    const [f] = await waitForFrames([res.body.files[0]!.frameId!])
+    const frameId = f.frame.id as number
+    // As an earlier version left it: no viewing copy, no line data, and an images list without them.
+    const storage = new Storage(storageConfigFromEnv())
+    const [row] = await db().select({ teamId: t.frames.teamId }).from(t.frames).where(eq(t.frames.id, frameId))
+    await storage.delete(keys.image(row!.teamId, frameId, 'picture'))
+    await storage.delete(keys.lines(row!.teamId, frameId))
+    await db().update(t.analyses).set({ images: ['thumb', 'overlay', 'waveform-luma', 'waveform-flat', 'waveform-rgb', 'vectorscope'] }).where(eq(t.analyses.frameId, frameId))
+    expect((await editor.get(`/api/frames/${frameId}`)).body.analysis.images.picture).toBeUndefined()
+    expect((await editor.get(`/api/frames/${frameId}/line/5`)).status).toBe(404)
+
+    const connection = new Redis(process.env.NUXT_REDIS_URL!, { maxRetriesPerRequest: null })
+    const queue = new Queue<AnalyseJob>(QUEUE_ANALYSE, { connection })
+    try {
+      expect(await queueMissingViews(db(), queue)).toBeGreaterThanOrEqual(1)
+    } finally {
+      await queue.close()
+      await connection.quit()
+    }
+    const until = Date.now() + 60_000
+    let images: Record<string, string> = {}
+    while (!images.picture && Date.now() < until) {
+      await new Promise((r) => setTimeout(r, 300))
+      images = (await editor.get(`/api/frames/${frameId}`)).body.analysis.images
+    }
+    expect(Object.keys(images).sort()).toEqual(['overlay', 'picture', 'thumb', 'vectorscope', 'waveform-flat', 'waveform-luma', 'waveform-rgb'])
+    const line = await editor.get(`/api/frames/${frameId}/line/5`)
+    expect(line.status).toBe(200)
+    expect(line.body.line).toEqual(lineJson(linePlot(await decodeBytes(bytes, { range: 'full' }), 5, { matrix: '601' })))
+    // The analysis itself was kept, not redone.
+    expect((await editor.get(`/api/frames/${frameId}`)).body.analysis.analysedAt).toBe(f.analysis.analysedAt)
   })
 
   it('measures a studio-range reel with its own range setting', async () => {

@@ -43,7 +43,7 @@ beforeAll(async () => {
   for (const role of ['owner', 'editor', 'reviewer', 'producer'] as const) c[role] = await new Client().login(team.users[role].email, team.users[role].password)
   reelId = (await c.editor.post(`/api/productions/${team.productionId}/reels`, { name: 'Day 2 — Camera B', sourceLabel: 'Camera B' })).body.id
   // Mid grey passes the NTSC spec; the test pattern's 100 % yellow and cyan patches reach
-  // +130.8 IRE composite (REFERENCE.md §4), beyond the +120 IRE limit, so those fail.
+  // +130.8 IRE composite (SMPTE EG 1 100 % bars with setup — memory; computed), beyond the +120 IRE limit, so those fail.
   const grey = await sharp({ create: { width: 64, height: 36, channels: 3, background: { r: 128, g: 128, b: 128 } } }).png().toBuffer()
   const cut = await png8(320, 180, 5151)
   const up = await c.editor.uploadFrames(reelId, [
@@ -143,7 +143,7 @@ describe('the sheet', () => {
     const [production] = await db().select().from(t.productions).where(eq(t.productions.id, team.productionId))
     expect(text).toContain(production!.name)
     expect(text).toContain('Day 2 — Camera B')
-    // The NTSC spec's thresholds (REFERENCE.md §6) and the caution point of +120 IRE less its 5 IRE margin.
+    // The NTSC spec's thresholds (ITU-R BT.1700 +120 IRE peak; −20 IRE NTSC practice) and the caution point of +120 IRE less its 5 IRE margin.
     for (const s of ['7.5 IRE', '100 IRE', '-20 IRE', '120 IRE', '115 IRE', 'ITU-R BT.1700', 'version 1']) expect(text, s).toContain(s)
     const frames = await db().select({ name: t.frames.name, a: t.analyses }).from(t.frames)
       .leftJoin(t.analyses, eq(t.analyses.frameId, t.frames.id)).where(eq(t.frames.reelId, reelId)).orderBy(asc(t.frames.seq))

@@ -2,7 +2,7 @@
 // not the way the data got there). Every call makes new, uniquely named rows.
 import { randomBytes } from 'node:crypto'
 import { createDb, firstId } from '../../server/db/client'
-import { hashPassword } from '../../server/db/password'
+import { hashPassword } from '../../server/seed/password'
 import * as t from '../../server/db/schema'
 import type { Role } from '../../shared/utils/roles'
 import { DATABASE_URL } from './env'

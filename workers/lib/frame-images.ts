@@ -1,16 +1,10 @@
-// The images the analyse job writes for a frame: thumbnail, range overlay and the scopes.
+// The images the analyse job writes for a frame: thumbnail, viewing copy, range overlay and the scopes.
 // Kept apart from the job so the step benchmark (tests/bench/pipeline-steps.ts) times this
 // very code, step by step, rather than a copy of it.
 import sharp, { type Sharp } from 'sharp'
-import { PALETTE, renderMaskLayer, renderVectorscope, renderWaveform } from '../../shared/engine/index'
+import { PALETTE, renderMaskLayer, renderPicture, renderVectorscope, renderWaveform } from '../../shared/engine/index'
 import type { FrameAnalysis, FrameInput, MatrixName, RgbaImage } from '../../shared/engine/index'
-import { renderPicture } from './preview'
-
-/** Images written per frame; the API serves them as /api/frames/:id/images/:kind. */
-export const IMAGE_KINDS = ['thumb', 'overlay', 'waveform-luma', 'waveform-flat', 'waveform-rgb', 'vectorscope'] as const
-export type ImageKind = (typeof IMAGE_KINDS)[number]
-
-export const THUMB_WIDTH = 320
+import { PICTURE_WIDTH, THUMB_WIDTH, type FrameImageKind } from '../../shared/utils/frame-images'
 
 /**
  * zlib levels, measured on the noisy 1080p benchmark frames (CPU, one libvips thread). The
@@ -52,21 +46,29 @@ async function png(img: RgbaImage, compressionLevel: number): Promise<FrameImage
 }
 
 /**
- * The thumbnail: full-range 8-bit stills are display levels already, so libvips scales the
- * decoded frame (a few ms); other inputs are first read into display R'G'B' by the engine's
- * row decoding, point-sampled at twice the thumbnail's width, then scaled.
+ * The viewing copy and the thumbnail, both from one display R'G'B' picture at the viewing
+ * copy's width: full-range 8-bit stills are display levels already, so libvips scales the
+ * decoded frame; other inputs are first read into display R'G'B' by the engine's row
+ * decoding, point-sampled at twice the viewing copy's width, then scaled.
  */
-async function thumbnail(input: FrameInput, matrix: MatrixName): Promise<FrameImage> {
-  let s: Sharp
-  if (input.kind === 'rgb' && input.bitDepth === 8 && input.range === 'full') {
-    const data = input.data as Uint8Array
-    s = sharp(Buffer.from(data.buffer, data.byteOffset, data.byteLength), { raw: { width: input.width, height: input.height, channels: input.channels } })
-    if (input.channels === 4) s = s.removeAlpha()
-  }
-  else {
-    s = rawRgba(renderPicture(input, matrix, THUMB_WIDTH * 2)).removeAlpha()
-  }
-  return frameImage(await s.resize({ width: THUMB_WIDTH, withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer(), 'image/jpeg')
+export async function renderViewingCopies(input: FrameInput, matrix: MatrixName, step: Step = run): Promise<{ thumb: FrameImage, picture: FrameImage }> {
+  const display = await step('display picture', async () => {
+    let s: Sharp
+    if (input.kind === 'rgb' && input.bitDepth === 8 && input.range === 'full') {
+      const data = input.data as Uint8Array
+      s = sharp(Buffer.from(data.buffer, data.byteOffset, data.byteLength), { raw: { width: input.width, height: input.height, channels: input.channels } })
+      if (input.channels === 4) s = s.removeAlpha()
+    }
+    else {
+      s = rawRgba(renderPicture(input, matrix, PICTURE_WIDTH * 2)).removeAlpha()
+    }
+    return s.resize({ width: PICTURE_WIDTH, withoutEnlargement: true }).raw().toBuffer({ resolveWithObject: true })
+  })
+  const raw = { raw: { width: display.info.width, height: display.info.height, channels: display.info.channels } }
+  const picture = await step('picture jpeg', async () => frameImage(await sharp(display.data, raw).jpeg({ quality: 88 }).toBuffer(), 'image/jpeg'))
+  const thumb = await step('thumb (resize+jpeg)', async () => frameImage(await sharp(display.data, raw)
+    .resize({ width: THUMB_WIDTH, withoutEnlargement: true }).jpeg({ quality: 80 }).toBuffer(), 'image/jpeg'))
+  return { thumb, picture }
 }
 
 /**
@@ -82,11 +84,11 @@ async function overlayLayer(analysis: FrameAnalysis, step: Step): Promise<FrameI
 
 export async function renderFrameImages(
   input: FrameInput, analysis: FrameAnalysis, matrix: MatrixName, step: Step = run,
-): Promise<Record<ImageKind, FrameImage>> {
+): Promise<Record<FrameImageKind, FrameImage>> {
   const w = analysis.waveform
   const v = analysis.vectorscope
   if (!w || !v || !analysis.rangeMask) throw new Error('the analysis was made without keepDensities: no scope data to draw')
-  const thumb = await step('thumb (resize+jpeg)', () => thumbnail(input, matrix))
+  const { thumb, picture } = await renderViewingCopies(input, matrix, step)
   const overlay = await overlayLayer(analysis, step)
   const scopes = {
     'waveform-luma': () => renderWaveform(w, 'luma'),
@@ -94,10 +96,10 @@ export async function renderFrameImages(
     'waveform-rgb': () => renderWaveform(w, 'rgb'),
     'vectorscope': () => renderVectorscope(v, { matrix }),
   } as const
-  const images: Partial<Record<ImageKind, FrameImage>> = { thumb, overlay }
+  const images: Partial<Record<FrameImageKind, FrameImage>> = { thumb, picture, overlay }
   for (const [kind, render] of Object.entries(scopes) as Array<[keyof typeof scopes, () => RgbaImage]>) {
     const img = await step(`${kind} render`, render)
     images[kind] = await step(`${kind} png`, () => png(img, PNG_LEVEL.scope))
   }
-  return images as Record<ImageKind, FrameImage>
+  return images as Record<FrameImageKind, FrameImage>
 }

@@ -1,6 +1,6 @@
 // Clicking the picture selects a line of the frame; the line plot's graticule and traces.
-// Sources: IRE levels of REFERENCE.md §4 (SMPTE 170M — memory; −20 IRE is practice, §6),
-// BT.601 sampling of §5 (13.5 MHz, 720 active samples = 53.333 µs).
+// Sources: IRE levels of SMPTE 170M (memory; −20 IRE is NTSC practice),
+// ITU-R BT.601 sampling (13.5 MHz, 720 active samples = 53.333 µs).
 import { describe, expect, it } from 'vitest'
 import { lineAtOffset, lineMarkerPercent, parseLineQuery } from '../../../app/utils/picture'
 import { componentToIre, LINE_GRATICULE_IRE, linePlotOption, lineYRange, sampleTooltip } from '../../../app/utils/line-plot'
@@ -47,7 +47,7 @@ const sample = (x: number, lumaIre: number, c = 0, rgb: [number, number, number]
 
 describe('line plot', () => {
   it('draws our IRE graticule with setup and white marked', () => {
-    // §4: setup 7.5, white 100, composite peak 120 (BT.1700); −20 is practice (§6).
+    // SMPTE 170M: setup 7.5, white 100, composite peak 120 (BT.1700); −20 is NTSC practice.
     expect([...LINE_GRATICULE_IRE]).toEqual([-20, 0, 7.5, 20, 40, 60, 80, 100, 120])
     const opt = linePlotOption([sample(0, 50), sample(719, 60)], 720, { r: false, g: false, b: false })
     const marks = (opt.series[0] as { markLine: { data: Array<{ yAxis: number, label: { show: boolean } }> } }).markLine.data
@@ -56,7 +56,7 @@ describe('line plot', () => {
   })
 
   it('spans the active line in microseconds and in samples', () => {
-    // §5: 720 samples at 13.5 MHz; the last sample starts at 719/13.5 = 53.26 µs.
+    // BT.601: 720 samples at 13.5 MHz; the last sample starts at 719/13.5 = 53.26 µs.
     const opt = linePlotOption([sample(0, 50), sample(719, 60)], 720, { r: false, g: false, b: false })
     expect(opt.xAxis[0]!.max).toBeCloseTo(719 / 13.5, 9)
     expect(opt.xAxis[1]!.max).toBe(719)
@@ -67,13 +67,13 @@ describe('line plot', () => {
     expect(linePlotOption(s, 720, { r: false, g: false, b: false }).series).toHaveLength(3)
     const withRgb = linePlotOption(s, 720, { r: true, g: false, b: true }).series
     expect(withRgb.map((x) => x.name)).toEqual(['Luma', 'Composite min', 'Composite envelope', 'R′', 'B′'])
-    // §4: nominal 1 = white 100 IRE, 0 = black 7.5 IRE on the setup scale.
+    // SMPTE 170M: nominal 1 = white 100 IRE, 0 = black 7.5 IRE on the setup scale.
     expect(componentToIre(1)).toBe(100)
     expect(componentToIre(0)).toBe(7.5)
   })
 
   it('builds the composite band from its lower edge and its height', () => {
-    // §4 (computed there): 75 % yellow, luma 69.0 IRE with chroma 62.1 IRE p-p → 38.0 … 100.0 IRE.
+    // SMPTE EG 1 bars (computed): 75 % yellow, luma 69.0 IRE with chroma 62.1 IRE p-p → 38.0 … 100.0 IRE.
     const opt = linePlotOption([sample(0, 69, 31.05)], 720, { r: false, g: false, b: false })
     const low = opt.series[1] as { data: number[][] }
     const band = opt.series[2] as { data: number[][] }
@@ -83,7 +83,7 @@ describe('line plot', () => {
 
   it('widens the axis to hold the whole graticule and any excursion', () => {
     expect(lineYRange([sample(0, 50)], { r: false, g: false, b: false })).toEqual({ min: -30, max: 130 })
-    // §4: 100 % bars reach +130.8 IRE; the axis must still show them.
+    // SMPTE 170M: 100 % bars reach +130.8 IRE; the axis must still show them.
     const wide = lineYRange([sample(0, 89.5, 41.3)], { r: false, g: false, b: false })
     expect(wide.max).toBeGreaterThanOrEqual(130.8)
     expect(sampleTooltip(sample(27, 69, 31))).toContain('Composite 38.0 … 100.0 IRE')
@@ -96,7 +96,7 @@ describe('histogram and waveform helpers', () => {
     expect(histogramShares([0, 0])).toEqual([0, 0])
   })
 
-  it('marks the studio-range limits at the histogram depth (REFERENCE.md §1)', () => {
+  it('marks the studio-range limits at the histogram depth (ITU-R BT.601-7 Table 3 — memory)', () => {
     expect(histogramLimits({ bins: 256, rgbCoding: 'studio' }, ['y'])).toEqual([16, 235])
     expect(histogramLimits({ bins: 1024, rgbCoding: 'studio' }, ['cb', 'cr'])).toEqual([64, 960])
     // R, G, B of a full-range file are its own codes: no studio limits apply.

@@ -1,14 +1,14 @@
 // Colour-bar codes and the BT.601 / BT.709 equations.
-// Sources: ITU-R BT.601-7 §2.5 (REFERENCE.md §1, clause numbers from memory), ITU-R BT.709-6
-// Part 2 items 3.2–3.4 (§2), bar tables of ITU-R BT.801-1 Table 1 (memory) and SMPTE RP 219 /
-// ITU-R BT.2111 Table 2 as copied in REFERENCE.md §3, worked examples of §7.
+// Sources: ITU-R BT.601-7 §2.5 (clause numbers from memory), ITU-R BT.709-6
+// Part 2 items 3.2–3.4 , bar tables of ITU-R BT.801-1 Table 1 (memory) and SMPTE RP 219 /
+// ITU-R BT.2111 Table 2 (computed), and worked examples computed from the BT.601 equations.
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, barRgb, makeRowBuffers, makeRowSource, MATRICES, packV210, quantiseYCbCr, rgbToYPbPr, yPbPrToRgb } from '../../../shared/engine/index'
 import type { BarName, MatrixName } from '../../../shared/engine/index'
 import { solidRgb16 } from './helpers'
 
 type Codes = [number, number, number]
-// REFERENCE.md §3, BT.601 100/0/75/0 bars: 8-bit Y/Cb/Cr and 10-bit Y/Cb/Cr.
+// ITU-R BT.801-1 Table 1 (memory; computed from BT.601), 100/0/75/0 bars: 8-bit Y/Cb/Cr and 10-bit Y/Cb/Cr.
 const BT601_75: Record<BarName, [Codes, Codes]> = {
   white: [[235, 128, 128], [940, 512, 512]],
   yellow: [[162, 44, 142], [646, 176, 567]],
@@ -19,7 +19,7 @@ const BT601_75: Record<BarName, [Codes, Codes]> = {
   blue: [[35, 212, 114], [139, 848, 457]],
   black: [[16, 128, 128], [64, 512, 512]],
 }
-// REFERENCE.md §3, BT.601 100/0/100/0 bars.
+// BT.601 100/0/100/0 bars (computed from the BT.601 equations).
 const BT601_100: Partial<Record<BarName, [Codes, Codes]>> = {
   yellow: [[210, 16, 146], [840, 64, 585]],
   cyan: [[170, 166, 16], [678, 663, 64]],
@@ -28,7 +28,7 @@ const BT601_100: Partial<Record<BarName, [Codes, Codes]>> = {
   red: [[81, 90, 240], [326, 361, 960]],
   blue: [[41, 240, 110], [164, 960, 439]],
 }
-// REFERENCE.md §3, BT.709 bars, 8-bit (computed there; RP 219 / BT.2111 Table 2).
+// BT.709 bars, 8-bit (SMPTE RP 219 / ITU-R BT.2111 Table 2 — computed from BT.709-6).
 const BT709_75: Partial<Record<BarName, Codes>> = {
   yellow: [168, 44, 136], cyan: [145, 147, 44], green: [133, 63, 52],
   magenta: [63, 193, 204], red: [51, 109, 212], blue: [28, 212, 120],
@@ -55,7 +55,7 @@ describe('BT.601 / BT.709 equations (ITU-R BT.601-7 §2.5, BT.709-6 Part 2)', ()
     }
   })
 
-  it('worked example: full-range (255, 0, 0) gives 81/90/240 (REFERENCE.md §7)', () => {
+  it('worked example: full-range (255, 0, 0) gives 81/90/240 (computed from ITU-R BT.601)', () => {
     // Y = 16 + 65.481·1 = 81.481 → 81; Cb = 128 − 37.797 = 90.2 → 90; Cr = 128 + 112 = 240.
     expect(quantiseYCbCr(rgbToYPbPr(1, 0, 0, '601'))).toEqual({ y: 81, cb: 90, cr: 240 })
     const a = analyseFrame(solidRgb16(1, 0, 0))
@@ -64,7 +64,7 @@ describe('BT.601 / BT.709 equations (ITU-R BT.601-7 §2.5, BT.709-6 Part 2)', ()
     expect(a.chroma.crMin).toBeCloseTo(240, 3)
   })
 
-  it('the integer matrix of REFERENCE.md §7 agrees with the engine for arbitrary R\'G\'B\'', () => {
+  it('the integer matrix derived from the BT.601 equations agrees with the engine for arbitrary R\'G\'B\'', () => {
     const samples: Array<[number, number, number]> = [[0.1, 0.5, 0.9], [0.8, 0.2, 0.3], [0.33, 0.66, 0.01]]
     for (const [r, g, b] of samples) {
       const a = analyseFrame(solidRgb16(r, g, b))
@@ -90,7 +90,7 @@ describe('BT.601 / BT.709 equations (ITU-R BT.601-7 §2.5, BT.709-6 Part 2)', ()
     expect(quantiseYCbCr({ y: 1, pb: 0.5, pr: -0.5 }, 10)).toEqual({ y: 940, cb: 960, cr: 64 })
   })
 
-  it('10-bit codes are rounded from the exact value, not 4× the 8-bit code (REFERENCE.md §1 note)', () => {
+  it('10-bit codes are rounded from the exact value, not 4× the 8-bit code (ITU-R BT.601 quantisation)', () => {
     // 75 % yellow: Y' = 0.75·(0.299 + 0.587) = 0.6645; 219·0.6645 + 16 = 161.5255 → 162;
     // ×4 = 646.1 → 646, whereas 4·162 = 648.
     const p = rgbToYPbPr(0.75, 0.75, 0, '601')
@@ -99,7 +99,7 @@ describe('BT.601 / BT.709 equations (ITU-R BT.601-7 §2.5, BT.709-6 Part 2)', ()
   })
 })
 
-describe('colour-bar codes measured from synthetic bars (REFERENCE.md §3, ±1 code)', () => {
+describe('colour-bar codes measured from synthetic bars (ITU-R BT.801-1 Table 1 — memory; ±1 code)', () => {
   for (const [name, [c8, c10]] of Object.entries(BT601_75) as Array<[BarName, [Codes, Codes]]>) {
     it(`BT.601 75 % ${name}: ${c8.join('/')} | ${c10.join('/')}`, () => {
       const m = measuredCodes(name, name === 'white' ? 1 : 0.75, '601')

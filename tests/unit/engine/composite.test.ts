@@ -1,5 +1,5 @@
 // NTSC (System M) levels of the 75 % and 100 % bars: luma IRE, chroma p-p, phase, composite
-// extremes. Sources: SMPTE 170M and SMPTE EG 1 via REFERENCE.md §4 (memory): U = 0.492111(B'−Y'),
+// extremes. Sources: SMPTE 170M and SMPTE EG 1 (memory): U = 0.492111(B'−Y'),
 // V = 0.877283(R'−Y'), IRE = 7.5 + 92.5·Y', p-p = 2·92.5·C, phase = atan2(V, U).
 // Expected values are computed below from those equations, independently of the engine's
 // code, and also checked against the published rounded table (±0.5 IRE, ±1°).
@@ -19,12 +19,12 @@ function expected(name: BarName, amp: number) {
   return { lumaIre: 7.5 + 92.5 * y, ppIre: 2 * 92.5 * C, phase, hi: 7.5 + 92.5 * (y + C), lo: 7.5 + 92.5 * (y - C) }
 }
 
-// REFERENCE.md §4, 75/7.5/75/7.5 bars (EG 1): luma IRE / chroma p-p IRE / phase.
+// SMPTE EG 1 75/7.5/75/7.5 bars (memory; computed from the SMPTE 170M equations): luma IRE / chroma p-p IRE / phase.
 const PUBLISHED_75: Array<[BarName, number, number, number | null]> = [
   ['yellow', 69.0, 62.1, 167.1], ['cyan', 56.1, 87.7, 283.5], ['green', 48.2, 81.9, 240.7],
   ['magenta', 36.2, 81.9, 60.7], ['red', 28.2, 87.7, 103.5], ['blue', 15.4, 62.1, 347.1],
 ]
-// REFERENCE.md §4, 100 % bars: luma then chroma p-p.
+// SMPTE EG 1 100 % bars (memory; computed): luma then chroma p-p.
 const PUBLISHED_100: Array<[BarName, number, number]> = [
   ['yellow', 89.5, 82.8], ['cyan', 72.3, 117.0], ['green', 61.8, 109.2],
   ['magenta', 45.7, 109.2], ['red', 35.2, 117.0], ['blue', 18.0, 82.8],
@@ -37,7 +37,7 @@ function measure(name: BarName, amp: number) {
   return { s, a: analyseFrame(input) }
 }
 
-describe('75 % bars on the NTSC scale (SMPTE EG 1, REFERENCE.md §4)', () => {
+describe('75 % bars on the NTSC scale (SMPTE EG 1 — memory)', () => {
   it('grey is 76.9 IRE with no chroma, black 7.5 IRE', () => {
     // 7.5 + 92.5·0.75 = 76.875
     expect(measure('white', 0.75).s.lumaIre).toBeCloseTo(76.875, 3)
@@ -70,7 +70,7 @@ describe('75 % bars on the NTSC scale (SMPTE EG 1, REFERENCE.md §4)', () => {
   })
 })
 
-describe('100 % bars on the NTSC scale (REFERENCE.md §4)', () => {
+describe('100 % bars on the NTSC scale (SMPTE EG 1 — memory; computed)', () => {
   it('white is 100 IRE', () => {
     expect(measure('white', 1).s.lumaIre).toBeCloseTo(100, 9)
   })
@@ -115,7 +115,7 @@ describe('100 % bars on the NTSC scale (REFERENCE.md §4)', () => {
   })
 })
 
-describe('burst reference and phase convention (REFERENCE.md §4)', () => {
+describe('burst reference and phase convention (SMPTE 170M — memory)', () => {
   it('−(B\'−Y\') alone sits at 180°, the burst phase; +(R\'−Y\') at 90°', () => {
     // A pixel with only negative U: Cb below centre, Cr at centre.
     const neg = linePlot({ kind: 'uyvy', data: new Uint8Array([64, 126, 128, 126]), width: 2, height: 1 }, 0).samples[0]!

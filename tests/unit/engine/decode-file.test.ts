@@ -2,14 +2,13 @@
 // Debian's ffmpeg (5.1.9-0+deb12u1) from raw data we make, into a temporary directory, so
 // the codes that come back can be checked against the codes that went in.
 import { execFile } from 'node:child_process'
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { promisify } from 'node:util'
-import { readFileSync } from 'node:fs'
 import sharp from 'sharp'
 import { afterAll, describe, expect, it } from 'vitest'
-import { decodeFile, DecodeFileError, MAX_INPUT_PIXELS } from '../../../workers/lib/decode-file'
+import { decodeFile, DecodeFileError, MAX_INPUT_PIXELS } from '../../../server/lib/decode-file'
 import { packV210 } from '../../../shared/engine/index'
 import { ffmpeg } from './ffmpeg'
 
@@ -37,7 +36,7 @@ function writeWithFfmpeg(raw: Uint8Array, inFmt: string, file: string, extra: st
 }
 
 describe('decodeFile', () => {
-  it('keeps every 16-bit code of a 16-bit PNG (STACK.md: rgb16 pipeline)', async () => {
+  it('keeps every 16-bit code of a 16-bit PNG (sharp 0.35: rgb16 pipeline)', async () => {
     const src = ramp16()
     const path = writeWithFfmpeg(new Uint8Array(src.buffer), 'rgb48le', 'ramp16.png', ['-pix_fmt', 'rgb48be'])
     const input = await decodeFile(path)
@@ -185,7 +184,7 @@ describe('decodeFile: colour profiles and colour models', () => {
 })
 
 const run = promisify(execFile)
-const CLI = ['--import', 'tsx', 'workers/analyse.ts']
+const CLI = ['--import', 'tsx', 'server/cli/analyse.ts']
 
 async function cli(args: string[]): Promise<{ code: number, stdout: string, stderr: string }> {
   try {
@@ -210,7 +209,7 @@ describe('analyse command line', () => {
     expect(Object.keys(j.chroma)).toEqual(['cbMin', 'cbMax', 'crMin', 'crMax', 'ppMaxIre'])
     for (const k of ['belowBlack', 'aboveWhite', 'compositeOut', 'gamutOut', 'clipped', 'crushed']) expect(typeof j.shares[k]).toBe('number')
     expect(j).toMatchObject({ width: 720, height: 486, bitDepth: 8, matrix: '601', range: 'studio' })
-    // The PLUGE's −4 IRE step sits below setup (REFERENCE.md §4 practice): code 7 is kept.
+    // The PLUGE's −4 IRE step sits below setup (SMPTE EG 1 practice — memory): code 7 is kept.
     expect(j.luma.min).toBe(7)
     expect(j.verdict).toBe('fail')
     expect(j.reasons[0]).toMatchObject({ limit: 'luma-min' })

@@ -110,7 +110,7 @@ describe('planar Y\'CbCr', () => {
     expect(p422.chroma.cbMax * 4).toBeCloseTo(800, 9)
   })
 
-  it('line plot positions: 13.5 MHz at 720 wide, proportional otherwise (REFERENCE.md §5)', () => {
+  it('line plot positions: 13.5 MHz at 720 wide, proportional otherwise (ITU-R BT.601 13.5 MHz sampling)', () => {
     const mk = (w: number) => ({ kind: 'planar' as const, y: new Uint8Array(w), cb: new Uint8Array(w / 2).fill(128), cr: new Uint8Array(w / 2).fill(128), width: w, height: 1, bitDepth: 8 as const, subsampling: '422' as const })
     const sd = linePlot(mk(720), 0).samples
     expect(sd[135]!.us).toBeCloseTo(10, 12) // 135 / 13.5 MHz

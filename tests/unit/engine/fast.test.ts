@@ -1,14 +1,13 @@
 // The fast kernels (shared/engine/fast.ts: 8-bit R'G'B', UYVY, v210, with vertical runs folded)
-// against the reference pass (analyseFrameReference: the per-pixel arithmetic of DESIGN.md
-// "Measurement", every pixel on its own). Every count, bin, histogram, density and extreme
+// against the reference pass (analyseFrameReference: the plain per-pixel arithmetic,
+// every pixel on its own). Every count, bin, histogram, density and extreme
 // must be identical; the only allowed difference is the luma mean of 8-bit R'G'B' (summed
 // per run rather than per pixel), which may differ in the last bits of a double.
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, packV210 } from '../../../shared/engine/index'
-import { analyseFrameReference } from '../../../shared/engine/analyse'
+import { analyseFrameReference, GAMUT_MARGIN_RGB_CODE8 } from '../../../shared/engine/analyse'
 import { fastMode, fastTuning } from '../../../shared/engine/fast'
-import { GAMUT_MARGIN_RGB_CODE8 } from '../../../shared/engine/analyse'
 import { HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE } from '../../../shared/engine/accumulate'
 import { MATRICES } from '../../../shared/engine/matrix'
 import type { FrameAnalysis, FrameInput, MatrixName } from '../../../shared/engine/index'
@@ -169,7 +168,7 @@ describe('fast kernels equal the reference pass', () => {
     const input: FrameInput = { kind: 'rgb', data, width: w, height: h, channels: 3, bitDepth: 8, range: 'full' }
     const a = analyseFrame(input, { keepDensities: true })
     expectSame(a, analyseFrameReference(input, { keepDensities: true }), input)
-    // 75 % yellow: Y' = 0.886 · 0.75 (BT.601-7 §2.5, REFERENCE.md §1): one level bin holds all.
+    // 75 % yellow: Y' = 0.886 · 0.75 (ITU-R BT.601-7 §2.5 — clause from memory): one level bin holds all.
     expect(Math.max(...a.histograms.levels.luma)).toBe(w * h)
     expect(a.luma.min).toBeCloseTo(16 + 219 * 0.886 * 191 / 255, 9)
   })

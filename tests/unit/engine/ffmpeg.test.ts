@@ -1,4 +1,4 @@
-// The engine against ffmpeg's signalstats filter on the same frames (REFERENCE.md §8):
+// The engine against ffmpeg's signalstats filter on the same frames (Debian's ffmpeg 5.1):
 // YMIN, YLOW (10th percentile), YAVG, YHIGH (90th), YMAX of luma, and BRNG (share of pixels
 // with Y outside 16–235 or Cb/Cr outside 16–240), ±1 code. Frames come from ffmpeg's own
 // generators. Checked with ffmpeg 5.1.9-0+deb12u1 (Debian 12).
@@ -75,7 +75,7 @@ describe(`engine vs ffmpeg signalstats (${ffmpegVersion()})`, () => {
   }
 
   // R'G'B' frames: the engine converts them itself; ffmpeg's swscale converts the same frame
-  // with out_color_matrix=bt601:out_range=tv to 4:4:4 (REFERENCE.md §8) before signalstats.
+  // with out_color_matrix=bt601:out_range=tv to 4:4:4 (ffmpeg 5.1 scale filter) before signalstats.
   const RGB: Array<[string, string, number, number]> = [
     ['RGB test pattern (rgbtestsrc)', 'rgbtestsrc=s=320x240', 320, 240],
     ['test pattern (testsrc2) as RGB', 'testsrc2=s=320x240', 320, 240],

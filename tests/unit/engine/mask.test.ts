@@ -1,8 +1,8 @@
 // The range mask (shared/engine/mask.ts): made in the engine's pass, on the verdict's own
 // level bins, downscaled by OR-ing blocks so that a single pixel beyond a limit survives.
 // Levels used: white at code 235 and black at 16 (8-bit), 940 and 64 (10-bit) — BT.601-7
-// §2.5 / Table 3 (REFERENCE.md §1, §3); 100 IRE white and 7.5 IRE setup on those codes —
-// SMPTE 170M (REFERENCE.md §4, clause from memory).
+// §2.5 / Table 3 (clause numbers from memory); 100 IRE white and 7.5 IRE setup on those
+// codes — SMPTE 170M (memory).
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, builtinSpec, MASK_HIGH, MASK_LOW, packV210, renderMaskLayer } from '../../../shared/engine/index'
 import { analyseFrameReference } from '../../../shared/engine/analyse'

@@ -1,5 +1,5 @@
 // Properties that hold for any frame (fast-check). Sources: BT.601-7 §2.5 (grey has
-// Pb = Pr = 0), REFERENCE.md §4 (scale definitions), DESIGN.md "Measurement" (area tolerance).
+// Pb = Pr = 0), SMPTE 170M scale definitions (memory), the area tolerance of a delivery spec (EBU R 103 v3.0).
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, evaluateSpec, fromScale, LEVEL_SCALES, linePlot, toScale } from '../../../shared/engine/index'
@@ -134,7 +134,7 @@ describe('properties', () => {
     }), { numRuns: 80 })
   })
 
-  it('scales are increasing, invert exactly, and agree with each other (REFERENCE.md §4)', () => {
+  it('scales are increasing, invert exactly, and agree with each other (SMPTE 170M definitions — memory)', () => {
     fc.assert(fc.property(fc.double({ min: -300, max: 600, noNaN: true }), fc.double({ min: 0.001, max: 100, noNaN: true }), (c, d) => {
       for (const s of LEVEL_SCALES) {
         expect(toScale(c + d, s)).toBeGreaterThan(toScale(c, s))

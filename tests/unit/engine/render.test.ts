@@ -1,5 +1,5 @@
 // Densities and their rendering. Geometry checks follow our own graticule definition
-// (waveform.ts, render.ts); bar target positions follow REFERENCE.md §4 (U, V equations).
+// (waveform.ts, render.ts); bar target positions follow the SMPTE 170M U, V equations (memory).
 import { describe, expect, it } from 'vitest'
 import {
   analyseFrame, barTargets, PALETTE, renderHistogram, renderVectorscope, renderWaveform,
@@ -70,8 +70,8 @@ describe('waveform density', () => {
 })
 
 describe('vectorscope', () => {
-  it('75 % bars land in the cells of their targets (REFERENCE.md §4 U, V)', () => {
-    // 75 % red coded as 8-bit: 65/100/212 (REFERENCE.md §3).
+  it('75 % bars land in the cells of their targets (SMPTE 170M U, V — memory)', () => {
+    // 75 % red coded as 8-bit: 65/100/212 (ITU-R BT.801-1 Table 1 — memory).
     const a = analyseFrame(uyvyRow([[65, 65, 100, 212]], 2), { keepDensities: true })
     const v = a.vectorscope!
     const red = barTargets(0.75).find(t => t.name === 'red')!

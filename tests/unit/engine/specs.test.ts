@@ -1,5 +1,5 @@
-// Delivery specs and the verdict. Sources: DESIGN.md "Measurement" (built-in specs),
-// REFERENCE.md §6 (EBU R 103 v3.0 figures, NTSC practice), BT.601 Table 3 (studio range).
+// Delivery specs and the verdict. Sources: the built-in specs' own published figures,
+// EBU R 103 v3.0 (2020) figures, NTSC practice, BT.601 Table 3 (studio range).
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, BUILTIN_SPECS, builtinSpec, DeliverySpecSchema, evaluateSpec, fromScale } from '../../../shared/engine/index'
 import type { DeliverySpec } from '../../../shared/engine/index'
@@ -18,7 +18,7 @@ describe('built-in delivery specs', () => {
     expect(builtinSpec('ebu-r103-v3')!.description).toMatch(/R 103 v3\.0.*supersedes the v1/)
   })
 
-  it('EBU R 103 v3.0: −5 %…105 % is 8-bit 5–246 and 10-bit 20–984 (REFERENCE.md §6)', () => {
+  it('EBU R 103 v3.0: −5 %…105 % is 8-bit 5–246 and 10-bit 20–984', () => {
     const ebu = builtinSpec('ebu-r103-v3')!
     const lo = ebu.limits.find(l => l.id === 'luma-min')!
     const hi = ebu.limits.find(l => l.id === 'luma-max')!
@@ -33,7 +33,7 @@ describe('built-in delivery specs', () => {
     expect(lo.value + lo.warningMargin).toBe(-1)
   })
 
-  it('NTSC with setup: 7.5–100 IRE luma, −20…+120 IRE composite (DESIGN.md, REFERENCE.md §6)', () => {
+  it('NTSC with setup: 7.5–100 IRE luma, −20…+120 IRE composite (ITU-R BT.1700 peak; −20 IRE NTSC practice)', () => {
     const l = Object.fromEntries(builtinSpec('ntsc-setup')!.limits.map(x => [x.id, x.value]))
     expect(l).toEqual({ 'luma-min': 7.5, 'luma-max': 100, 'composite-min': -20, 'composite-max': 120 })
   })
@@ -126,7 +126,7 @@ describe('gamut share', () => {
     const data = new Uint8Array([236, 100, 100, 235, 235, 235, 15, 100, 100, 16, 16, 16])
     const a = analyseFrame({ kind: 'rgb', data, width: 4, height: 1, channels: 3, bitDepth: 8, range: 'studio' })
     expect(a.shares.gamutOut).toBe(0.5)
-    // 100 % red coded 81/90/240 (REFERENCE.md §3) decodes to B' = −0.0038 through rounding alone.
+    // 100 % red coded 81/90/240 (ITU-R BT.801-1 Table 1 — memory; computed) decodes to B' = −0.0038 through rounding alone.
     expect(analyseFrame(uyvyRow([[81, 81, 90, 240]], 1)).shares.gamutOut).toBe(0)
   })
 })

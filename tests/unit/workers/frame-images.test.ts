@@ -4,7 +4,8 @@ import sharp from 'sharp'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, builtinSpec, MASK_DEFAULT_WIDTH, MASK_HIGH, MASK_LOW, PALETTE } from '../../../shared/engine/index'
 import type { FrameInput } from '../../../shared/engine/index'
-import { IMAGE_KINDS, renderFrameImages, THUMB_WIDTH } from '../../../workers/lib/frame-images'
+import { renderFrameImages } from '../../../workers/lib/frame-images'
+import { FRAME_IMAGE_KINDS, PICTURE_WIDTH, THUMB_WIDTH } from '../../../shared/utils/frame-images'
 import { solidRgb8, uyvyRow } from '../engine/helpers'
 
 const decode = async (bytes: Uint8Array) => sharp(bytes).raw().toBuffer({ resolveWithObject: true })
@@ -28,14 +29,14 @@ async function marks(png: Uint8Array): Promise<{ width: number, height: number, 
 describe('frame images', () => {
   it('stores a JPEG thumbnail, the overlay as a transparent layer of the engine\'s marks, and the scopes', async () => {
     // Studio-range grey (code 126) with one super-white pixel, code 250 > white 235 (BT.601
-    // Table 3, REFERENCE.md §1).
+    // Table 3 — memory).
     const W = 1920; const H = 1080
     const frame = solidRgb8(126, 126, 126, W, H, 'studio')
     ;(frame as Extract<FrameInput, { kind: 'rgb' }>).data.fill(250, (532 * W + 1000) * 3, (532 * W + 1000) * 3 + 3)
     const spec = builtinSpec('digital-studio')!
     const a = analyseFrame(frame, { spec, keepDensities: true })
     const images = await renderFrameImages(frame, a, '601')
-    expect(Object.keys(images).sort()).toEqual([...IMAGE_KINDS].sort())
+    expect(Object.keys(images).sort()).toEqual([...FRAME_IMAGE_KINDS].sort())
 
     expect(images.thumb.contentType).toBe('image/jpeg')
     const thumb = await sharp(images.thumb.data).metadata()
@@ -45,7 +46,14 @@ describe('frame images', () => {
     const { data: tp } = await decode(images.thumb.data)
     expect(Math.abs(tp[0]! - 128)).toBeLessThanOrEqual(2)
 
-    for (const kind of IMAGE_KINDS.filter(k => k !== 'thumb')) {
+    // The viewing copy: computed, 1080 · 1600/1920 = 900.
+    expect(images.picture.contentType).toBe('image/jpeg')
+    const picture = await sharp(images.picture.data).metadata()
+    expect([picture.format, picture.width, picture.height]).toEqual(['jpeg', PICTURE_WIDTH, 900])
+    const { data: pp } = await decode(images.picture.data)
+    expect(Math.abs(pp[0]! - 128)).toBeLessThanOrEqual(2)
+
+    for (const kind of FRAME_IMAGE_KINDS.filter(k => k !== 'thumb' && k !== 'picture')) {
       expect(images[kind].contentType).toBe('image/png')
       expect((await sharp(images[kind].data).metadata()).format).toBe('png')
     }
@@ -59,7 +67,7 @@ describe('frame images', () => {
 
   it('marks above and below on full-range 8-bit stills, where the verdict counts them', async () => {
     // Full-range grey (128) with one 100 % yellow pixel, composite +130.8 IRE above the 120 IRE
-    // limit, and one 100 % blue, −23.3 IRE below −20 IRE (REFERENCE.md §4, 100 % bars).
+    // limit, and one 100 % blue, −23.3 IRE below −20 IRE (SMPTE EG 1 100 % bars — memory; computed).
     const W = 1920; const H = 1080
     const frame = solidRgb8(128, 128, 128, W, H)
     const d = (frame as Extract<FrameInput, { kind: 'rgb' }>).data
@@ -79,7 +87,7 @@ describe('frame images', () => {
   })
 
   it('makes the thumbnail of a raw Y\'CbCr capture through the engine\'s row decoding, as a JPEG', async () => {
-    // 720×486 UYVY, the BT.601 raster (REFERENCE.md §5): 320 wide → 486 · 320/720 = 216 rows.
+    // 720×486 UYVY, the ITU-R BT.601 raster: 320 wide → 486 · 320/720 = 216 rows.
     const pairs = Array.from({ length: 360 }, (_, k): [number, number, number, number] => [16 + (k % 200), 16 + (k % 200), 128, 128])
     const frame = uyvyRow(pairs, 486)
     const spec = builtinSpec('ntsc-setup')!

@@ -1,7 +1,6 @@
 import { IdParams } from '../../../../shared/utils/validation'
 import { DecisionBody } from '../../../../shared/utils/decisions'
 import { recordDecisions } from '../../../lib/decisions'
-import { rejectionMailText, rejectionNotices } from '../../../lib/sheet-notify'
 
 /** A reviewer's or owner's decision on one analysed frame. */
 export default defineEventHandler(async (event) => {
@@ -20,9 +19,3 @@ export default defineEventHandler(async (event) => {
   })
   return { decision, note, decidedBy: { id: user.id, name: user.name }, decidedAt: new Date() }
 })
-
-async function queueRejectionMails(tx: Parameters<typeof rejectionNotices>[0], a: { teamId: number; frameIds: number[]; decider: { id: number; name: string }; note: string }) {
-  for (const n of await rejectionNotices(tx, { teamId: a.teamId, frameIds: a.frameIds, deciderId: a.decider.id })) {
-    await queueMail(mailWithLink({ ...rejectionMailText(n, { note: a.note, deciderName: a.decider.name }), link: appUrl(`/reels/${n.reelId}`) }))
-  }
-}

@@ -1,4 +1,5 @@
 import { and, asc, desc, eq, gt, lt } from 'drizzle-orm'
+import type { FrameImageKind } from '../../../../shared/utils/frame-images'
 import { IdParams } from '../../../../shared/utils/validation'
 
 /**
@@ -21,6 +22,8 @@ export default defineEventHandler(async (event) => {
     id: tables.reels.id, name: tables.reels.name, sourceLabel: tables.reels.sourceLabel, sourceRange: tables.reels.sourceRange,
     matrix: tables.reels.matrix, signedAt: tables.reels.signedAt, productionId: tables.productions.id, productionName: tables.productions.name,
   }).from(tables.reels).innerJoin(tables.productions, eq(tables.productions.id, tables.reels.productionId)).where(eq(tables.reels.id, frame.reelId))
+  // The foreign keys keep this row; a miss means the reel went while this request ran.
+  if (!reel) throw createError({ statusCode: 404, statusMessage: 'Not found' })
   const { objectKey: _k, sha256: _s, ...pub } = frame
   return {
     frame: pub,
@@ -30,13 +33,14 @@ export default defineEventHandler(async (event) => {
     decision: d ? { decision: d.decision.decision, note: d.decision.note, decidedBy: d.by?.id ? d.by : null, decidedAt: d.decision.updatedAt } : null,
     analysis: a
       ? {
-          ...(a.result as object),
+          ...a.result,
           specVersion: a.specVersion,
           analysedAt: a.createdAt,
           durationMs: a.durationMs,
           histograms: a.histograms,
-          // `picture` (the viewing copy) is made on first request, so it is not in the stored list.
-          images: Object.fromEntries([...(a.images as string[]), 'picture'].map((k) => [k, `/api/frames/${frame.id}/images/${k}`])),
+          // A frame analysed before the viewing copy was stored lists none until the worker
+          // makes it; the page shows the thumbnail meanwhile.
+          images: Object.fromEntries(a.images.map((k) => [k, `/api/frames/${frame.id}/images/${k}`])) as Partial<Record<FrameImageKind, string>>,
         }
       : null,
   }

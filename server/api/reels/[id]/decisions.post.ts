@@ -1,7 +1,6 @@
 import { IdParams } from '../../../../shared/utils/validation'
 import { BulkDecisionBody } from '../../../../shared/utils/decisions'
 import { recordDecisions } from '../../../lib/decisions'
-import { rejectionMailText, rejectionNotices } from '../../../lib/sheet-notify'
 
 /** The same decision and note on many frames of a reel at once. */
 export default defineEventHandler(async (event) => {
@@ -13,11 +12,7 @@ export default defineEventHandler(async (event) => {
     const res = await recordDecisions(tx, { teamId: reel.teamId, reelId: reel.id, frameIds, userId: user.id, decision, note })
     // One mail per uploader for the whole batch, queued inside the transaction so that with
     // Redis down the batch is refused (503) rather than saved unannounced.
-    if (decision === 'rejected') {
-      for (const n of await rejectionNotices(tx, { teamId: reel.teamId, frameIds: res.updatedIds, deciderId: user.id })) {
-        await queueMail(mailWithLink({ ...rejectionMailText(n, { note, deciderName: user.name }), link: appUrl(`/reels/${n.reelId}`) }))
-      }
-    }
+    if (decision === 'rejected') await queueRejectionMails(tx, { teamId: reel.teamId, frameIds: res.updatedIds, decider: user, note })
     return res
   })
   // Ids of other reels or teams are ignored, exactly as ids that do not exist.

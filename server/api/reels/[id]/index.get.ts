@@ -8,6 +8,8 @@ export default defineEventHandler(async (event) => {
   const { reel, role } = await requireReel(event, id, 'view')
   const db = useDb()
   const [production] = await db.select({ id: tables.productions.id, name: tables.productions.name }).from(tables.productions).where(eq(tables.productions.id, reel.productionId))
+  // The foreign keys keep these rows; a miss means the reel went while this request ran.
+  if (!production) throw createError({ statusCode: 404, statusMessage: 'Not found' })
   const [counts] = await db.select({
     total: sql<number>`count(*)`,
     queued: sql<number>`coalesce(sum(${tables.frames.status} = 'queued'), 0)`,
@@ -29,6 +31,11 @@ export default defineEventHandler(async (event) => {
     role,
     production,
     spec: { name: spec.name, title: spec.title, version },
-    counts: Object.fromEntries(Object.entries(counts ?? {}).map(([k, v]) => [k, n(v)])),
+    // MariaDB answers sums as strings.
+    counts: {
+      total: n(counts?.total), queued: n(counts?.queued), analysing: n(counts?.analysing), done: n(counts?.done), failed: n(counts?.failed),
+      pass: n(counts?.pass), caution: n(counts?.caution), fail: n(counts?.fail),
+      accepted: n(counts?.accepted), rejected: n(counts?.rejected), waived: n(counts?.waived),
+    },
   }
 })

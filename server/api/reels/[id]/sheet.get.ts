@@ -15,6 +15,8 @@ export default defineEventHandler(async (event) => {
   const db = useDb()
   const [production] = await db.select({ id: tables.productions.id, name: tables.productions.name, client: tables.productions.client, teamId: tables.productions.teamId })
     .from(tables.productions).where(eq(tables.productions.id, reel.productionId))
+  // The foreign keys keep these rows; a miss means the reel went while this request ran.
+  if (!production) throw createError({ statusCode: 404, statusMessage: 'Not found' })
   const rows = await loadSheetRows(db, reel.id)
   const current = await currentSignoff(db, reel.id)
   const { spec, version } = await specForProduction(db, reel.productionId)
@@ -26,7 +28,7 @@ export default defineEventHandler(async (event) => {
     can: { signOff: can(role, 'signOff'), reopen: can(role, 'reopen'), download: can(role, 'downloadSheet') },
     // While signed, the sheet shows the spec as it was signed; otherwise the one a sign-off would record.
     spec: current
-      ? { name: current.specName, title: current.specTitle, version: current.specVersion, description: (current.specBody as typeof spec).description, limits: (current.specBody as typeof spec).limits }
+      ? { name: current.specName, title: current.specTitle, version: current.specVersion, description: current.specBody.description, limits: current.specBody.limits }
       : { name: spec.name, title: spec.title, version, description: spec.description, limits: spec.limits },
     blockers: reel.signedAt ? [] : signoffBlockers(rows),
     summary: summarise(rows),
@@ -34,6 +36,7 @@ export default defineEventHandler(async (event) => {
     signoff: current
       ? { id: current.id, signerName: current.signerName, signedAt: current.signedAt, engineVersion: current.engineVersion, sheetStatus: current.sheetStatus, sheetError: current.sheetError }
       : null,
-    history: history.filter((h) => h.supersededAt),
+    // Earlier sign-offs only: each was superseded by a reopen.
+    history: history.flatMap((h) => (h.supersededAt ? [{ ...h, supersededAt: h.supersededAt }] : [])),
   }
 })

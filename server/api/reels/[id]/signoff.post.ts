@@ -1,10 +1,10 @@
-import { and, eq } from 'drizzle-orm'
+import { eq } from 'drizzle-orm'
 import { ENGINE_VERSION } from '../../../../shared/engine'
 import { IdParams } from '../../../../shared/utils/validation'
 import { QUEUE_SHEET, sheetJobId, type SheetJob } from '../../../../shared/utils/queues'
-import type { Db } from '../../../db/client'
+import { producersOf, signoffMailText } from '../../../lib/notices'
 import { loadSheetRows } from '../../../lib/sheet'
-import { OVERALL_LABELS, signoffBlockers, summarise } from '../../../lib/sheet-rules'
+import { signoffBlockers, summarise } from '../../../lib/sheet-rules'
 import { specForProduction } from '../../../lib/specs'
 
 /**
@@ -29,7 +29,7 @@ export default defineEventHandler(async (event) => {
     if (blockers.length) {
       throw createError({ statusCode: 409, statusMessage: `This reel cannot be signed off yet: ${blockers.map((b) => b.message).join('; ')}`, data: { blockers } })
     }
-    const { spec, version } = await specForProduction(tx as unknown as Db, reel.productionId)
+    const { spec, version } = await specForProduction(tx, reel.productionId)
     const [production] = await tx.select().from(tables.productions).where(eq(tables.productions.id, reel.productionId))
     const signedAt = new Date()
     const summary = summarise(rows)
@@ -46,23 +46,15 @@ export default defineEventHandler(async (event) => {
     // Queued before the commit: if Redis is down the whole sign-off is refused (503) rather
     // than left without its sheet or its mails. A job that outruns the commit is retried.
     await enqueue(QUEUE_SHEET, 'sheet', { signoffId } satisfies SheetJob, { jobId: sheetJobId(signoffId) })
-    const producers = await tx.select({ email: tables.users.email, name: tables.users.name }).from(tables.memberships)
-      .innerJoin(tables.users, eq(tables.users.id, tables.memberships.userId))
-      .where(and(eq(tables.memberships.teamId, reel.teamId), eq(tables.memberships.role, 'producer')))
+    const producers = await producersOf(tx, reel.teamId)
     const link = appUrl(`/sheets/${reel.id}`)
     for (const p of producers) {
       await queueMail(mailWithLink({
-        to: p.email,
-        subject: `Signed off: ${production!.name} — ${reel.name}`,
-        lines: [
-          `Hello ${p.name},`,
-          `${user.name} signed off the reel "${reel.name}" of ${production!.name}.`,
-          `Overall result: ${OVERALL_LABELS[summary.overall]} (${summary.because}; ${rows.length} frame${rows.length === 1 ? '' : 's'}).`,
-          `Measured against ${spec.title}, version ${version}, by Linewise engine ${ENGINE_VERSION}. The measurement is an aid: the broadcaster's own QC and spec take precedence.`,
-          'The PDF and CSV of the pass/fail sheet are on the sheet page.',
-        ],
+        ...signoffMailText(p, {
+          signerName: user.name, reelName: reel.name, productionName: production!.name,
+          summary, frames: rows.length, specTitle: spec.title, specVersion: version,
+        }),
         link,
-        action: 'Open the pass/fail sheet',
       }))
     }
     return { signoffId, signedAt, summary, notified: producers.length }

@@ -1,9 +1,11 @@
-import { makeRowBuffers, makeRowSource, resolveMatrix } from '../../shared/engine'
-import type { FrameInput, MatrixName, RgbaImage } from '../../shared/engine/types'
+import { makeRowBuffers, makeRowSource } from './decode'
+import { resolveMatrix } from './matrix'
+import type { FrameInput, MatrixName, RgbaImage } from './types'
 
 /**
  * The picture as display RGBA (R'G'B' clipped), decimated to at most `maxWidth` columns by
- * point sampling: used for thumbnails of raw Y'CbCr, which sharp cannot read.
+ * point sampling: used for thumbnails and viewing copies of inputs that are not display
+ * R'G'B' already (raw Y'CbCr, which sharp cannot read, studio range, 16-bit).
  */
 export function renderPicture(input: FrameInput, matrix: MatrixName | undefined, maxWidth: number): RgbaImage {
   const src = makeRowSource(input, resolveMatrix(matrix))

@@ -4,7 +4,7 @@ import type { Metadata } from 'sharp'
 import { v210Stride } from '../../shared/engine/decode'
 import type { FrameInput, SourceRange } from '../../shared/engine/types'
 
-/** Largest picture decoded: refuses decompression bombs before libvips allocates (DESIGN.md "Safety"). */
+/** Largest picture decoded: refuses decompression bombs before libvips allocates (libvips' limitInputPixels, checked before it allocates). */
 export const MAX_INPUT_PIXELS = 80_000_000
 
 export type RawKind = 'uyvy' | 'v210'
@@ -78,7 +78,7 @@ export async function decodeStill(bytes: Uint8Array, range: SourceRange, maxPixe
   const deep = meta.depth !== undefined && meta.depth !== 'uchar' && meta.depth !== 'char'
   try {
     if (deep) {
-      // A plain .raw({ depth: 'ushort' }) scales 16-bit input down to 0–255 (STACK.md): keep
+      // A plain .raw({ depth: 'ushort' }) scales 16-bit input down to 0–255 (sharp 0.35): keep
       // the pipeline in rgb16 so the codes arrive untouched (greyscale is copied to R, G and B).
       const { data, info } = await open().pipelineColourspace('rgb16').toColourspace('rgb16').removeAlpha()
         .raw({ depth: 'ushort' }).toBuffer({ resolveWithObject: true })

@@ -1,6 +1,6 @@
 // Analysis progress and when the reel page polls (counts as GET /api/reels/:id answers them).
 import { describe, expect, it } from 'vitest'
-import { analysisProgress, needsPolling, percentText } from '../../../app/utils/reelProgress'
+import { analysisProgress, needsPolling, percentText } from '../../../app/utils/reel-progress'
 
 const counts = (c: Partial<{ total: number; queued: number; analysing: number; done: number; failed: number }>) =>
   ({ total: 0, queued: 0, analysing: 0, done: 0, failed: 0, ...c })

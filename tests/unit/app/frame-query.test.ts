@@ -4,7 +4,7 @@ import { describe, expect, it } from 'vitest'
 import {
   DEFAULT_FRAME_LIST, frameListApiQuery, frameListFromQuery, frameListToQuery, pageCount, pageRangeText,
   sortingFromState, stateFromSorting, withFilter,
-} from '../../../app/utils/frameQuery'
+} from '../../../app/utils/frame-query'
 
 describe('frames table state', () => {
   it('reads an empty address as the default view, and writes the default view as an empty address', () => {

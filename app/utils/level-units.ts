@@ -3,16 +3,7 @@
 // own conversions so that every screen agrees to the last digit.
 import { formatShare, ireToCode8, scaleDigits, toScale, type LevelScale } from '../../shared/engine/scales'
 
-/** Short names for column headings; SCALE_LABELS gives the long form. */
-export const SCALE_SHORT: Record<LevelScale, string> = {
-  ire: 'IRE',
-  ire0: 'IRE, no setup',
-  mv: 'mV',
-  mvNtsc: 'mV NTSC',
-  pct: '%',
-  code8: '8-bit',
-  code10: '10-bit',
-}
+export { SCALE_SHORT } from '../../shared/engine/scales'
 
 /** A stored IRE (7.5 setup) level on another scale. */
 export function ireToScale(ire: number, scale: LevelScale): number {

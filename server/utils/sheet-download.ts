@@ -1,15 +1,15 @@
 // The two sheet downloads (PDF and CSV) answer alike. Routes only: it reaches for the
-// server's request helpers, so the worker must not import it.
+// server's request helpers and auto-imported utilities, so it lives among them.
 import { createError, getValidatedQuery, getValidatedRouterParams, setResponseHeader, setResponseHeaders, setResponseStatus, type H3Event } from 'h3'
 import { and, eq } from 'drizzle-orm'
 import { z } from 'zod'
 import { IdParams, IdSchema } from '../../shared/utils/validation'
 import { QUEUE_SHEET, sheetJobId, type SheetJob } from '../../shared/utils/queues'
-import { currentSignoff } from './sheet'
-import { tables, useDb } from '../utils/db'
-import { useQueue } from '../utils/redis'
-import { requireReel } from '../utils/reels'
-import { useStorageS3 } from '../utils/storage'
+import { currentSignoff } from '../lib/sheet'
+import { tables, useDb } from './db'
+import { useQueue } from './redis'
+import { requireReel } from './reels'
+import { useStorageS3 } from './s3'
 
 const Query = z.object({
   /** An earlier (superseded) sign-off of the same reel; the standing one when absent. */

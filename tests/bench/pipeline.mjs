@@ -13,8 +13,8 @@ import { randomBytes } from 'node:crypto'
 import { availableParallelism, loadavg } from 'node:os'
 import { cpSync, existsSync, readdirSync, readFileSync, rmSync } from 'node:fs'
 import { basename, join } from 'node:path'
-import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
-import { ensureBuild, ensureNodeModules, log, migrateAndSeed, signInDemoOwner, startApp, waitForHttp } from './stack.mjs'
+import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from '../../docker-local/services.mjs'
+import { ensureBuild, ensureNodeModules, log, migrateAndSeed, signInDemoOwner, startApp, waitForHttp } from '../../docker-local/stack.mjs'
 
 const FRAMES = Number(process.env.LW_BENCH_FRAMES ?? 200)
 const PER_REQUEST = Number(process.env.LW_BENCH_PER_REQUEST ?? 4)
@@ -72,7 +72,7 @@ try {
   if (process.env.LW_BENCH_SKIP_BUILD !== '1') ensureBuild()
 
   // Made once and kept under .data/bench/frames: generating 200 PNGs takes about a minute.
-  const { ensureFrames } = await import('../tests/bench/pipeline-frames.mjs')
+  const { ensureFrames } = await import('./pipeline-frames.mjs')
   log(`preparing ${FRAMES} 1080p PNG frames`)
   const paths = await ensureFrames(join(p.dataDir, 'frames'), FRAMES)
   const files = paths.map((path) => ({ name: basename(path), bytes: readFileSync(path) }))

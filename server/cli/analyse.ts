@@ -3,12 +3,13 @@
 //   [--raw uyvy|v210 --width W --height H] [--spec NAME] [--line N] [--json]
 import { parseArgs } from 'node:util'
 import {
-  analyseFrame, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, ENGINE_VERSION, EngineInputError, formatShare,
-  LEVEL_SCALES, linePlot, MV_CONVENTION, toScale,
-} from '../shared/engine/index'
-import type { FrameAnalysis, LevelScale, LinePlot, MatrixName, SourceRange } from '../shared/engine/index'
-import { decodeFile, DecodeFileError } from './lib/decode-file'
-import type { RawKind } from './lib/decode-file'
+  analyseFrame, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, EngineInputError, formatShare,
+  LEVEL_SCALES, linePlot, MV_CONVENTION, SCALE_SHORT, toScale,
+} from '../../shared/engine/index'
+import type { FrameAnalysis, LinePlot, MatrixName, SourceRange } from '../../shared/engine/index'
+import { analysisJson, lineJson } from '../../shared/utils/report'
+import { decodeFile, DecodeFileError } from '../lib/decode-file'
+import type { RawKind } from '../lib/decode-file'
 
 class UsageError extends Error {}
 
@@ -27,35 +28,8 @@ function int(v: string | undefined, what: string): number | undefined {
   return Number(v)
 }
 
-const r3 = (v: number) => Math.round(v * 1000) / 1000
-const r6 = (v: number) => Math.round(v * 1e6) / 1e6
-
 function toJson(a: FrameAnalysis, specName: string, line?: LinePlot) {
-  const round = <T extends object>(o: T): T =>
-    Object.fromEntries(Object.entries(o).map(([k, v]) => [k, r3(v as number)])) as T
-  return {
-    engineVersion: ENGINE_VERSION,
-    width: a.width, height: a.height, bitDepth: a.bitDepth, matrix: a.matrix, range: a.range,
-    luma: round(a.luma),
-    lumaIre: round(a.lumaIre),
-    compositeIre: round(a.compositeIre),
-    chroma: round(a.chroma),
-    shares: Object.fromEntries(Object.entries(a.shares).map(([k, v]) => [k, r6(v)])),
-    spec: specName,
-    verdict: a.verdict,
-    reasons: a.reasons.map(r => ({ ...r, value: r3(r.value), share: r6(r.share) })),
-    ...(line
-      ? {
-          line: {
-            index: line.index,
-            samples: line.samples.map(s => ({
-              x: s.x, us: r3(s.us), lumaIre: r3(s.lumaIre), compMinIre: r3(s.compMinIre), compMaxIre: r3(s.compMaxIre),
-              chromaPpIre: r3(s.chromaPpIre), phaseDeg: s.phaseDeg === null ? null : r3(s.phaseDeg), r: r6(s.r), g: r6(s.g), b: r6(s.b),
-            })),
-          },
-        }
-      : {}),
-  }
+  return { ...analysisJson(a, specName), ...(line ? { line: lineJson(line) } : {}) }
 }
 
 function summary(file: string, a: FrameAnalysis, specName: string, line?: LinePlot): string {
@@ -63,14 +37,11 @@ function summary(file: string, a: FrameAnalysis, specName: string, line?: LinePl
   const f = (v: number, d = 1) => v.toFixed(d).padStart(8)
   out.push(`${file}: ${a.width}×${a.height}, ${a.bitDepth}-bit, ${a.range} range, BT.${a.matrix}`)
   out.push('')
-  const short: Record<LevelScale, string> = {
-    ire: 'IRE (setup)', ire0: 'IRE (no setup)', mv: 'mV component', mvNtsc: 'mV NTSC', pct: '%', code8: '8-bit code', code10: '10-bit code',
-  }
   out.push(`luma            ${['min', 'p1', 'p10', 'p50', 'mean', 'p90', 'p99', 'max'].map(k => k.padStart(8)).join('')}`)
   for (const s of LEVEL_SCALES) {
     const d = s === 'mv' || s === 'mvNtsc' || s === 'code10' ? 0 : s === 'code8' ? 2 : 1
     const vals = (['min', 'p1', 'p10', 'p50', 'mean', 'p90', 'p99', 'max'] as const).map(k => f(toScale(a.luma[k], s), d))
-    out.push(`  ${short[s].padEnd(14)}${vals.join('')}`)
+    out.push(`  ${SCALE_SHORT[s].padEnd(14)}${vals.join('')}`)
   }
   out.push(`  (mV ${MV_CONVENTION}; mV NTSC = 140 IRE per volt, white 714 mV)`)
   out.push('')

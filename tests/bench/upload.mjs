@@ -17,8 +17,8 @@ import { spawn } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
 import { cpSync, readFileSync, rmSync } from 'node:fs'
 import { basename, join, resolve } from 'node:path'
-import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from './services.mjs'
-import { ensureNodeModules, log, migrateAndSeed, signInDemoOwner, waitForHttp } from './stack.mjs'
+import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from '../../docker-local/services.mjs'
+import { ensureNodeModules, log, migrateAndSeed, signInDemoOwner, waitForHttp } from '../../docker-local/stack.mjs'
 
 const FRAMES = Number(process.env.LW_BENCH_FRAMES ?? 100)
 const PER_REQUEST = Number(process.env.LW_BENCH_PER_REQUEST ?? 4)
@@ -102,7 +102,7 @@ try {
   resetDatabase(p)
   const env = { ...process.env, ...serviceEnv(p), NUXT_SESSION_PASSWORD: randomBytes(36).toString('base64url') }
   migrateAndSeed(env)
-  const { ensureFrames } = await import('../tests/bench/pipeline-frames.mjs')
+  const { ensureFrames } = await import('./pipeline-frames.mjs')
   const paths = await ensureFrames(join(p.dataDir, 'frames'), FRAMES)
   const files = paths.map((path) => ({ name: basename(path), bytes: readFileSync(path) }))
   const mb = files.reduce((s, f) => s + f.bytes.length, 0) / 2 ** 20

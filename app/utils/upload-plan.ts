@@ -8,7 +8,7 @@ export type RawFormat = (typeof RAW_FORMATS)[number]
 
 export const ACCEPTED_EXTENSIONS = ['.png', '.tif', '.tiff', '.jpg', '.jpeg', '.webp', '.uyvy', '.yuv', '.v210'] as const
 
-/** Sizes people capture raw frames at. 486 and 480 are NTSC active lines (analogue, DV/MPEG: REFERENCE §5). */
+/** Sizes people capture raw frames at. 486 and 480 are NTSC active lines (analogue NTSC incl. half-lines; DV/MPEG/ATSC: SMPTE 170M and common practice). */
 export const RAW_PRESETS = [
   { width: 720, height: 486, label: '720 × 486', note: 'NTSC, analogue active lines' },
   { width: 720, height: 480, label: '720 × 480', note: 'NTSC, DV and MPEG' },
@@ -143,22 +143,6 @@ export function completeOutcome(answer: { status: number; body: unknown } | { er
   if (answer.status === 410 || answer.status === 404) return { state: 'failed', reason: said || 'This upload expired', retryFrom: 'announce' }
   if (answer.status >= 400 && answer.status < 500 && said) return { state: 'refused', reason: said }
   return { state: 'failed', reason: said || `The server answered ${answer.status || 'nothing'}`, retryFrom: 'complete' }
-}
-
-/** Runs tasks with at most `limit` at a time; every task runs even when others fail. */
-export async function runLimited(tasks: readonly (() => Promise<unknown>)[], limit: number): Promise<void> {
-  let next = 0
-  const lane = async () => {
-    while (next < tasks.length) {
-      const task = tasks[next++]!
-      try {
-        await task()
-      } catch {
-        // Each task reports its own failure on its file; one failure must not stop the lane.
-      }
-    }
-  }
-  await Promise.all(Array.from({ length: Math.max(1, Math.min(limit, tasks.length)) }, lane))
 }
 
 export interface UploadTally {

@@ -1,12 +1,12 @@
 // Upload planning in the browser. Limits from shared/utils/uploads.ts (UPLOAD_LIMITS: 256 MiB a
-// file, 200 files per announcement, 16 MiB parts); raw sizes from DESIGN.md "Input forms"
+// file, 200 files per announcement, 16 MiB parts); raw sizes people capture at (common practice)
 // (UYVY 2 bytes a pixel; v210 packs 6 pixels in 16 bytes, rows padded to 48-pixel blocks of
 // 128 bytes — the layout shared/engine/decode.ts reads).
 import { describe, expect, it } from 'vitest'
 import { UPLOAD_LIMITS } from '../../../shared/utils/uploads'
 import {
-  checkRawFile, checkRawSize, checkUploadFile, completeOutcome, inBatches, partRanges, rawFrameBytes, runLimited, tallyUploads,
-} from '../../../app/utils/uploadPlan'
+  checkRawFile, checkRawSize, checkUploadFile, completeOutcome, inBatches, partRanges, rawFrameBytes, tallyUploads,
+} from '../../../app/utils/upload-plan'
 
 const MiB = 2 ** 20
 
@@ -88,23 +88,6 @@ describe('announcing and sending', () => {
   it('refuses a part list that does not cover the file', () => {
     expect(() => partRanges(40 * MiB, 16 * MiB, [1, 2])).toThrow('The server offered 2 parts for a file that needs 3')
     expect(() => partRanges(40 * MiB, 16 * MiB, [1, 2, 4])).toThrow(/needs 3/)
-  })
-
-  it('runs at most the given number of tasks at once, and all of them even when some fail', async () => {
-    let running = 0
-    let peak = 0
-    const done: number[] = []
-    const tasks = Array.from({ length: 7 }, (_, i) => async () => {
-      running++
-      peak = Math.max(peak, running)
-      await new Promise((r) => setTimeout(r, 5 + (i % 3)))
-      running--
-      if (i === 2) throw new Error('network')
-      done.push(i)
-    })
-    await runLimited(tasks, 3)
-    expect(peak).toBe(3)
-    expect(done.sort()).toEqual([0, 1, 3, 4, 5, 6])
   })
 })
 

@@ -1,11 +1,12 @@
-// Who hears about rejected frames: the person who uploaded them, once per decision batch,
-// and only while they are still in the team (a link they cannot open helps nobody).
+// Who hears about what, and the words they read: the uploader of rejected frames (once per
+// decision batch, and only while still in the team: a link they cannot open helps nobody),
+// and the team's producers when a reel is signed off. Routes add the link and queue the mail.
 import { and, eq, inArray, ne } from 'drizzle-orm'
-import type { Db } from '../db/client'
+import type { DbOrTx } from '../db/client'
 import * as t from '../db/schema'
-import { frameList } from './sheet-rules'
+import { ENGINE_VERSION } from '../../shared/engine'
+import { frameList, OVERALL_LABELS, type SheetSummary } from './sheet-rules'
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
 
 export interface RejectionNotice {
   to: string
@@ -18,7 +19,7 @@ export interface RejectionNotice {
   list: string
 }
 
-export async function rejectionNotices(db: Db | Tx, args: { teamId: number; frameIds: number[]; deciderId: number }): Promise<RejectionNotice[]> {
+export async function rejectionNotices(db: DbOrTx, args: { teamId: number; frameIds: number[]; deciderId: number }): Promise<RejectionNotice[]> {
   if (!args.frameIds.length) return []
   const rows = await db.select({
     seq: t.frames.seq, name: t.frames.name, reelId: t.reels.id, reelName: t.reels.name, productionName: t.productions.name,
@@ -55,5 +56,30 @@ export function rejectionMailText(n: RejectionNotice, args: { note: string; deci
       `Note: ${args.note}`,
     ],
     action: 'Open the reel',
+  }
+}
+
+/** The team's producers, who receive the sheet when a reel is signed off. */
+export async function producersOf(db: DbOrTx, teamId: number): Promise<{ email: string, name: string }[]> {
+  return db.select({ email: t.users.email, name: t.users.name }).from(t.memberships)
+    .innerJoin(t.users, eq(t.users.id, t.memberships.userId))
+    .where(and(eq(t.memberships.teamId, teamId), eq(t.memberships.role, 'producer')))
+}
+
+/** The words of a sign-off mail to one producer; it names the spec and engine that measured the reel. */
+export function signoffMailText(to: { email: string, name: string }, a: {
+  signerName: string, reelName: string, productionName: string, summary: SheetSummary, frames: number, specTitle: string, specVersion: number
+}) {
+  return {
+    to: to.email,
+    subject: `Signed off: ${a.productionName} — ${a.reelName}`,
+    lines: [
+      `Hello ${to.name},`,
+      `${a.signerName} signed off the reel "${a.reelName}" of ${a.productionName}.`,
+      `Overall result: ${OVERALL_LABELS[a.summary.overall]} (${a.summary.because}; ${a.frames} frame${a.frames === 1 ? '' : 's'}).`,
+      `Measured against ${a.specTitle}, version ${a.specVersion}, by Linewise engine ${ENGINE_VERSION}. The measurement is an aid: the broadcaster's own QC and spec take precedence.`,
+      'The PDF and CSV of the pass/fail sheet are on the sheet page.',
+    ],
+    action: 'Open the pass/fail sheet',
   }
 }
