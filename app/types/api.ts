@@ -14,14 +14,20 @@ export interface ReelCounts {
   pass: number; caution: number; fail: number
   accepted: number; rejected: number; waived: number
 }
-export interface ReelOverviewRow extends ReelRow { counts: ReelCounts & { undecided: number }; lastActivity: string }
+export interface ReelSheetState {
+  signed: boolean; overall: 'pass' | 'pass-with-exceptions' | 'fail'; blockers: number
+  signerName: string | null; signedAt: string | null; sheetStatus: 'pending' | 'ready' | 'failed' | null
+}
+export interface ReelOverviewRow extends ReelRow {
+  counts: ReelCounts & { undecided: number }; lastActivity: string; sheet: ReelSheetState
+}
 export interface ProductionDetail {
   id: number; teamId: number; name: string; client: string; createdAt: string; updatedAt: string; role: Role
   spec: SpecRef; reels: ReelOverviewRow[]
 }
 export interface ReelDetail extends ReelRow {
   teamId: number; productionId: number; role: Role
-  production: { id: number; name: string }; spec: SpecRef; counts: ReelCounts
+  production: { id: number; name: string }; spec: SpecRef; counts: ReelCounts; sheet: ReelSheetState
 }
 export interface FrameDecisionInfo { decision: Decision; note: string; decidedBy: { id: number; name: string } | null; decidedAt: string }
 export interface FrameListRow {

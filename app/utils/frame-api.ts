@@ -48,6 +48,14 @@ export interface FrameDecisionView {
   decidedAt: string
 }
 
+/** One decision in a frame's history (`cleared` when it was withdrawn), oldest first. */
+export interface DecisionStepView {
+  at: string
+  decision: Decision | 'cleared'
+  note: string
+  by: string | null
+}
+
 export interface FrameReelView {
   id: number
   name: string
@@ -63,8 +71,9 @@ export interface FrameDetail {
   frame: FrameRecord
   role: Role
   reel: FrameReelView
-  neighbours: { prevId: number | null, nextId: number | null }
+  neighbours: { prevId: number | null, nextId: number | null, nextUndecidedId: number | null }
   decision: FrameDecisionView | null
+  history: DecisionStepView[]
   analysis: FrameAnalysisView | null
 }
 
