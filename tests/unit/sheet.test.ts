@@ -128,7 +128,7 @@ describe('PDF', () => {
       production: { name: 'Tidewrack Mill (fictional)', client: 'Ombervale Media (fictional)' }, team: { name: 'Unit team' },
       reel: { id: 1, name: 'Day 2 - Camera B', sourceLabel: 'Camera B', sourceRange: 'full', matrix: '601' },
       signoff: { id: 42, signerName: 'Ada Reviewer', signedAt: new Date('2026-05-04T14:03:00Z'), specVersion: 3, engineVersion: '1.0.0' },
-      spec, rows, summary, images: { thumb: async () => null, scope: async () => null },
+      spec, rows, summary, images: { thumb: async () => null, scope: async () => null, picture: async () => null },
     })
     expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-')
     const parser = new PDFParse({ data: new Uint8Array(pdf) })
