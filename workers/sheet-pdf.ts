@@ -369,9 +369,10 @@ async function scopePages(doc: Doc, input: SheetInput) {
 async function placeImage(doc: Doc, img: Uint8Array | null, x: number, y: number, w: number, h: number): Promise<number> {
   if (img) {
     try {
-      const opened = doc.openImage(Buffer.from(img))
+      // pdfkit's openImage is not in its type declarations; it reads the size without drawing.
+      const opened = (doc as Doc & { openImage(src: Buffer): { width: number; height: number } }).openImage(Buffer.from(img))
       const scale = Math.min(w / opened.width, h / opened.height)
-      doc.image(opened, x, y, { width: opened.width * scale, height: opened.height * scale })
+      doc.image(opened as unknown as Buffer, x, y, { width: opened.width * scale, height: opened.height * scale })
       return opened.height * scale
     } catch { /* falls through to the note below */ }
   }

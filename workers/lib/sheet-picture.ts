@@ -1,7 +1,7 @@
 // The sheet's "picture with range marks": the frame itself with the transparent marks layer
 // the analyse job stored laid over it, at the frame's own aspect ratio. (The layer alone is
 // marks on nothing; the PDF needs them composed, as the frame page composes them in CSS.)
-import sharp from 'sharp'
+import sharp, { type OverlayOptions, type Sharp } from 'sharp'
 import type { MatrixName } from '../../shared/engine/types'
 import { decodeBytes } from './decode-file'
 import { renderPicture } from './preview'
@@ -26,10 +26,10 @@ export async function sheetPicture(src: SheetPictureSource): Promise<{ jpeg: Buf
   const { frame } = src
   const width = Math.min(SHEET_PICTURE_WIDTH, frame.width)
   const height = Math.max(1, Math.round((width * frame.height) / frame.width))
-  let base = await src.viewing()
-  let image: sharp.Sharp
-  if (base) {
-    image = sharp(Buffer.from(base))
+  const viewing = await src.viewing()
+  let image: Sharp
+  if (viewing) {
+    image = sharp(Buffer.from(viewing))
   } else {
     const raw = frame.format === 'uyvy' || frame.format === 'v210' ? frame.format : undefined
     const input = await decodeBytes(await src.original(), {
@@ -41,9 +41,9 @@ export async function sheetPicture(src: SheetPictureSource): Promise<{ jpeg: Buf
     })
   }
   // The frame's own shape, whatever size the copy was made at.
-  base = await image.removeAlpha().resize({ width, height, fit: 'fill' }).png().toBuffer()
+  const base = await image.removeAlpha().resize({ width, height, fit: 'fill' }).png().toBuffer()
   const marks = await src.overlay()
-  const layers: sharp.OverlayOptions[] = []
+  const layers: OverlayOptions[] = []
   if (marks) {
     // Each mark is a block of the frame: nearest-neighbour keeps the blocks crisp.
     const scaled = await sharp(Buffer.from(marks)).resize({ width, height, fit: 'fill', kernel: 'nearest' }).png().toBuffer()
