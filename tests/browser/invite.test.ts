@@ -82,7 +82,7 @@ describe('inviting a reviewer', () => {
   })
 
   it('mails a link that opens the invitation', async () => {
-    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM}`))
+    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM.replace(/[()]/g, '\\$&')}`))
     invitationUrl = linkIn(mail, '/invitations/')
     expect(invitationUrl.startsWith(`${APP_URL()}/invitations/`)).toBe(true)
 
