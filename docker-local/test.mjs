@@ -39,8 +39,9 @@ async function takeLock() {
 try {
   await takeLock()
   ensureNodeModules()
-  // ffmpeg is the independent reference implementation in the engine tests; chromium runs the browser tests.
-  ensureDebian({ ffmpeg: 'ffmpeg', chromium: 'chromium' })
+  // ffmpeg is the independent reference implementation in the engine tests; chromium runs the browser tests;
+  // pdftoppm (poppler) renders the sheet's PDF pages to images, as a reader would see them.
+  ensureDebian({ ffmpeg: 'ffmpeg', chromium: 'chromium', pdftoppm: 'poppler-utils' })
   // A test run starts from nothing: leftovers of an interrupted run are stopped and wiped.
   await stopServices(p)
   for (const d of ['s3', 'mail']) rmSync(join(p.dataDir, d), { recursive: true, force: true })

@@ -28,17 +28,22 @@ const INK = '#15191e'
 const MUTED = '#5b6670'
 const RULE = '#c9d0d7'
 const ACCENT = '#1f8f87'
+// The marks' colours as the engine paints them (PALETTE.overlayHigh / overlayLow).
+const MARK_HIGH = '#ff3096'
+const MARK_LOW = '#18aaff'
+const VERDICT_WORDS = { pass: 'Pass', caution: 'Caution', fail: 'Fail' } as const
 const TONE = { pass: '#2c7a4b', caution: '#8a5a00', fail: '#b0362c', exceptions: '#8a5a00', none: '#5b6670' } as const
 
 export interface SheetImages {
   thumb: (frameId: number) => Promise<Uint8Array | null>
+  /** The picture with its range marks laid over it, at the frame's own shape. */
+  picture: (frameId: number) => Promise<{ jpeg: Buffer; width: number; height: number } | null>
   scope: (frameId: number, kind: ScopeKind) => Promise<Uint8Array | null>
 }
 
-export const SCOPE_KINDS = ['overlay', 'waveform-luma', 'waveform-flat', 'vectorscope'] as const
+export const SCOPE_KINDS = ['waveform-luma', 'waveform-flat', 'vectorscope'] as const
 export type ScopeKind = (typeof SCOPE_KINDS)[number]
 const SCOPE_TITLES: Record<ScopeKind, string> = {
-  'overlay': 'Picture with range overlay',
   'waveform-luma': 'Waveform, luma',
   'waveform-flat': 'Waveform, flat (luma + chroma)',
   'vectorscope': 'Vectorscope',
@@ -90,8 +95,8 @@ export async function renderSheetPdf(input: SheetInput): Promise<Buffer> {
   await coverPage(doc, input, left, width)
   specSection(doc, input, left, width, bottom)
   await framesTable(doc, input, left, width, bottom)
-  await scopePages(doc, input, left, width, bottom)
-  footers(doc, input, left, width)
+  await scopePages(doc, input)
+  footers(doc, input)
   doc.end()
   return done
 }
@@ -106,7 +111,8 @@ function heading(doc: Doc, text: string, left: number, width: number) {
 }
 
 function label(doc: Doc, text: string, x: number, y: number, w: number) {
-  doc.font('regular').fontSize(7.5).fillColor(MUTED).text(text.toUpperCase(), x, y, { width: w, characterSpacing: 0.4 })
+  // As written: upper-casing would turn units such as mV into MV.
+  doc.font('bold').fontSize(7.5).fillColor(MUTED).text(text, x, y, { width: w, characterSpacing: 0.2 })
 }
 
 async function coverPage(doc: Doc, input: SheetInput, left: number, width: number) {
@@ -289,49 +295,106 @@ async function framesTable(doc: Doc, input: SheetInput, left: number, width: num
   doc.font('regular').fontSize(8).fillColor(MUTED).text('Luma min/max and composite max in IRE (7.5 setup). Out of range: the largest share of the picture below black, above white, beyond the composite limits or outside the RGB gamut.', left, doc.y, { width })
 }
 
-async function scopePages(doc: Doc, input: SheetInput, left: number, width: number, bottom: () => number) {
+/**
+ * One portrait page per frame that failed or was overridden, laid out as a report: the
+ * picture with its range marks across the page at its own shape; below it the luma waveform
+ * and the flat waveform on the left, and on the right a smaller vectorscope with the frame's
+ * reasons and the reviewer's decision and note.
+ */
+async function scopePages(doc: Doc, input: SheetInput) {
   const frames = framesWithScopes(input.rows)
-  if (!frames.length) return
   for (const r of frames) {
-    doc.addPage()
-    heading(doc, `Scopes — #${r.seq} ${r.name}`, left, width)
-    const parts = [`Verdict: ${(r.verdict ?? '—').toUpperCase()}`, `Decision: ${r.decision ? DECISION_LABELS[r.decision] : 'none'}${r.decidedBy ? ` by ${r.decidedBy}` : ''}`]
-    doc.font('bold').fontSize(9.5).fillColor(INK).text(parts.join('    '), left, doc.y, { width })
-    if (r.note) doc.font('regular').fontSize(9.5).text(`Note: ${r.note}`, left, doc.y + 2, { width })
-    if (r.reasons.length) doc.font('regular').fontSize(8.5).fillColor(MUTED).text(r.reasons.map((x) => x.message).join('; '), left, doc.y + 2, { width })
-    const top = doc.y + 8
-    const gap = 12
-    const cw = (width - gap) / 2
-    const ch = (bottom() - top - gap) / 2 - 12
-    for (const [i, kind] of SCOPE_KINDS.entries()) {
-      const x = left + (i % 2) * (cw + gap)
-      const y = top + Math.floor(i / 2) * (ch + 12 + gap)
-      label(doc, SCOPE_TITLES[kind], x, y, cw)
-      const img = await input.images.scope(r.frameId, kind)
-      doc.rect(x, y + 11, cw, ch).fill('#0b0d10')
-      if (img) {
-        try {
-          doc.image(Buffer.from(img), x, y + 11, { fit: [cw, ch], align: 'center', valign: 'center' })
-          continue
-        } catch { /* falls through to the note below */ }
-      }
-      doc.font('regular').fontSize(8).fillColor('#ffffff').text('image not available', x + 8, y + 20, { width: cw - 16 })
+    doc.addPage({ size: 'A4', layout: 'portrait', margins: { top: 36, bottom: 44, left: 36, right: 36 } })
+    const left = doc.page.margins.left
+    const width = doc.page.width - left - doc.page.margins.right
+    const bottom = doc.page.height - doc.page.margins.bottom
+    heading(doc, `Frame #${r.seq} — ${r.name}`, left, width)
+    const verdict = r.verdict ? VERDICT_WORDS[r.verdict] : '—'
+    doc.font('bold').fontSize(10).fillColor(r.verdict ? TONE[r.verdict] : MUTED).text(`Verdict: ${verdict}`, left, doc.y, { continued: true })
+    doc.font('regular').fillColor(INK).text(`     Decision: ${r.decision ? DECISION_LABELS[r.decision] : 'none'}${r.decidedBy ? ` by ${r.decidedBy}` : ''}`)
+
+    // The picture with its marks, full width, never taller than two fifths of the page.
+    let y = doc.y + 8
+    label(doc, 'Picture with range marks', left, y, width)
+    y += 11
+    const pic = await input.images.picture(r.frameId)
+    const maxH = (bottom - y) * 0.42
+    if (pic) {
+      const scale = Math.min(width / pic.width, maxH / pic.height)
+      const w = pic.width * scale
+      const h = pic.height * scale
+      doc.image(pic.jpeg, left + (width - w) / 2, y, { width: w, height: h })
+      y += h + 4
+    } else {
+      doc.font('regular').fontSize(9).fillColor(MUTED).text('The picture is not available.', left, y, { width })
+      y = doc.y + 4
     }
+    doc.rect(left, y + 2, 8, 8).fill(MARK_HIGH)
+    doc.font('regular').fontSize(8).fillColor(MUTED).text('above the upper limit', left + 12, y + 2, { lineBreak: false })
+    doc.rect(left + 110, y + 2, 8, 8).fill(MARK_LOW)
+    doc.fillColor(MUTED).text('below the lower limit (each mark is a block of the frame with a pixel beyond the limit)', left + 122, y + 2, { width: width - 122 })
+    y = doc.y + 12
+
+    // Below: waveforms on the left, a smaller vectorscope and the words on the right.
+    const gap = 16
+    const leftW = width * 0.6
+    const rightX = left + leftW + gap
+    const rightW = width - leftW - gap
+    const half = (bottom - y - 2 * 13 - gap) / 2
+    let ly = y
+    for (const kind of ['waveform-luma', 'waveform-flat'] as const) {
+      label(doc, SCOPE_TITLES[kind], left, ly, leftW)
+      ly += 11
+      ly += await placeImage(doc, await input.images.scope(r.frameId, kind), left, ly, leftW, half) + gap / 2
+    }
+    let ry = y
+    label(doc, SCOPE_TITLES.vectorscope, rightX, ry, rightW)
+    ry += 11
+    ry += await placeImage(doc, await input.images.scope(r.frameId, 'vectorscope'), rightX, ry, rightW, rightW) + 12
+    label(doc, 'Why', rightX, ry, rightW)
+    const reasons = r.reasons.length ? r.reasons.map((x) => `• ${x.message}`).join('\n') : 'Within every limit of the spec.'
+    doc.font('regular').fontSize(9).fillColor(INK).text(reasons, rightX, ry + 11, { width: rightW })
+    ry = doc.y + 10
+    label(doc, 'Decision and note', rightX, ry, rightW)
+    const decided = r.decision
+      ? `${DECISION_LABELS[r.decision]}${r.decidedBy ? ` by ${r.decidedBy}` : ''}${r.decidedAt ? `, ${fmtUtc(r.decidedAt)}` : ''}`
+      : 'No decision.'
+    doc.font('bold').fontSize(9).fillColor(INK).text(decided, rightX, ry + 11, { width: rightW })
+    if (r.note) doc.font('regular').fontSize(9).text(`“${r.note}”`, rightX, doc.y + 2, { width: rightW, height: bottom - doc.y - 2, ellipsis: true })
   }
 }
 
-function footers(doc: Doc, input: SheetInput, left: number, width: number) {
+/** An image fitted into a box at its own shape, left-aligned; returns the height used. */
+async function placeImage(doc: Doc, img: Uint8Array | null, x: number, y: number, w: number, h: number): Promise<number> {
+  if (img) {
+    try {
+      // pdfkit's openImage is not in its type declarations; it reads the size without drawing.
+      const opened = (doc as Doc & { openImage(src: Buffer): { width: number; height: number } }).openImage(Buffer.from(img))
+      const scale = Math.min(w / opened.width, h / opened.height)
+      doc.image(opened as unknown as Buffer, x, y, { width: opened.width * scale, height: opened.height * scale })
+      return opened.height * scale
+    } catch { /* falls through to the note below */ }
+  }
+  doc.font('regular').fontSize(8).fillColor(MUTED).text('Image not available.', x, y, { width: w })
+  return doc.heightOfString('Image not available.', { width: w })
+}
+
+function footers(doc: Doc, input: SheetInput) {
   const range = doc.bufferedPageRange()
   for (let i = range.start; i < range.start + range.count; i++) {
     doc.switchToPage(i)
+    // Pages differ in orientation: each footer takes its own page's width.
+    const left = doc.page.margins.left
+    const width = doc.page.width - left - doc.page.margins.right
     // Writing into the bottom margin would make pdfkit start a page of its own.
     const margin = doc.page.margins.bottom
     doc.page.margins.bottom = 0
     const y = doc.page.height - 28
     doc.moveTo(left, y - 4).lineTo(left + width, y - 4).lineWidth(0.4).strokeColor(RULE).stroke()
     doc.font('regular').fontSize(7.5).fillColor(MUTED)
-      .text(`${input.production.name} · ${input.reel.name} · sign-off #${input.signoff.id} by ${input.signoff.signerName}, ${fmtUtc(input.signoff.signedAt)} · spec ${input.spec.name} v${input.signoff.specVersion} · engine ${input.signoff.engineVersion}`,
-        left, y, { width: width - 70, lineBreak: false, ellipsis: true })
+      .text(`${input.production.name} · ${input.reel.name} · sign-off #${input.signoff.id} by ${input.signoff.signerName}, `
+        + `${fmtUtc(input.signoff.signedAt)} · spec ${input.spec.name} v${input.signoff.specVersion} · engine ${input.signoff.engineVersion}`,
+      left, y, { width: width - 70, height: 9, lineBreak: false, ellipsis: true })
     doc.text(`page ${i - range.start + 1} of ${range.count}`, left + width - 70, y, { width: 70, align: 'right', lineBreak: false })
     doc.page.margins.bottom = margin
   }

@@ -12,6 +12,8 @@ import { loadSheetContext, sheetKeys } from '../server/lib/sheet'
 import { CSV_COLUMNS, CSV_NUMBER_COLUMNS, csvRecord, summarise, type SheetRow } from '../server/lib/sheet-rules'
 import { keys, type Storage } from '../server/lib/storage'
 import { renderSheetPdf, type ScopeKind } from './sheet-pdf'
+import { sheetPicture } from './lib/sheet-picture'
+import { UPLOAD_LIMITS } from '../shared/utils/uploads'
 
 export interface SheetDeps {
   db: Db
@@ -57,10 +59,29 @@ export async function processSheet(job: SheetJobLike, deps: SheetDeps): Promise<
         return null
       }
     }
+    const files = new Map((await db.select({ id: t.frames.id, objectKey: t.frames.objectKey, format: t.frames.format, width: t.frames.width, height: t.frames.height })
+      .from(t.frames).where(eq(t.frames.reelId, reel.id))).map((f) => [f.id, f]))
+    const picture = async (frameId: number) => {
+      const f = files.get(frameId)
+      if (!f) return null
+      try {
+        return await sheetPicture({
+          frame: f, reel, maxPixels: UPLOAD_LIMITS.maxPixels,
+          viewing: async () => (await storage.get(keys.image(reel.teamId, frameId, 'picture')).catch(() => null)),
+          original: () => storage.get(f.objectKey),
+          overlay: async () => (await storage.get(keys.image(reel.teamId, frameId, 'overlay')).catch(() => null)),
+        })
+      } catch {
+        return null
+      }
+    }
     const pdf = await renderSheetPdf({
       production, team, reel, spec, rows, summary,
-      signoff: { id: signoff.id, signerName: signoff.signerName, signedAt: signoff.signedAt, specVersion: signoff.specVersion, engineVersion: signoff.engineVersion },
-      images: { thumb: (id) => image(id, 'thumb'), scope: image },
+      signoff: {
+        id: signoff.id, signerName: signoff.signerName, signedAt: signoff.signedAt, specVersion: signoff.specVersion,
+        engineVersion: signoff.engineVersion,
+      },
+      images: { thumb: (id) => image(id, 'thumb'), scope: image, picture },
     })
     const pdfKey = sheetKeys.pdf(reel.teamId, reel.id, signoff.id)
     const csvKey = sheetKeys.csv(reel.teamId, reel.id, signoff.id)

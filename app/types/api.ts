@@ -17,3 +17,4 @@ export type MemberRow = ApiGet<'/api/teams/:teamId/members'>[number]
 export type PendingInvitation = ApiGet<'/api/teams/:teamId/invitations'>[number]
 export type SheetPage = ApiGet<'/api/reels/:id/sheet'>
 export type ApiTokenRow = ApiGet<'/api/teams/:teamId/tokens'>[number]
+export type ReelSheetState = ReelDetail['sheet']

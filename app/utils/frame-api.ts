@@ -17,3 +17,4 @@ export type LineSampleJson = LineResponse['line']['samples'][number]
 
 /** One row of GET /api/reels/:id/frames, as far as the frame picker reads it. */
 export type PickerFrameRow = Pick<FrameListRow, 'id' | 'seq' | 'name' | 'timecode' | 'status' | 'verdict' | 'thumbUrl'>
+export type DecisionStepView = FrameDetail['history'][number]

@@ -12,8 +12,12 @@ export interface AnalysisProgress {
   pending: number
 }
 
-export function analysisProgress(c: StatusCounts | null | undefined): AnalysisProgress {
-  const total = Math.max(0, c?.total ?? 0)
+/**
+ * `sending` counts files still on their way from this browser: they are frames to come, so
+ * the share does not read 100 % while they travel.
+ */
+export function analysisProgress(c: StatusCounts | null | undefined, sending = 0): AnalysisProgress {
+  const total = Math.max(0, c?.total ?? 0) + Math.max(0, sending)
   const finished = Math.min(total, (c?.done ?? 0) + (c?.failed ?? 0))
   return { finished, total, share: total ? finished / total : 1, pending: total - finished }
 }

@@ -111,7 +111,7 @@ export const UPLOAD_STATE_LABELS: Record<UploadState, string> = {
   waiting: 'waiting',
   sending: 'sending',
   checking: 'checking',
-  queued: 'queued',
+  queued: 'stored',
   duplicate: 'duplicate',
   refused: 'refused',
   failed: 'failed',

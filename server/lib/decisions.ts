@@ -1,5 +1,5 @@
-import { and, eq, inArray } from 'drizzle-orm'
-import type { Tx } from '../db/client'
+import { and, asc, eq, inArray } from 'drizzle-orm'
+import type { DbOrTx, Tx } from '../db/client'
 import * as t from '../db/schema'
 import type { Decision } from '../../shared/utils/decisions'
 
@@ -25,4 +25,39 @@ export async function recordDecisions(tx: Tx, args: { teamId: number; reelId: nu
   }
   const readyIds = new Set(ready.map((f) => f.id))
   return { updated: ready.length, updatedIds: [...readyIds], notReady: frames.filter((f) => !readyIds.has(f.id)).map((f) => f.id), found: frames.map((f) => f.id) }
+}
+
+/** One step in a frame's decision history, read back from the audit log. */
+export interface DecisionEvent {
+  frameId: number
+  at: Date
+  /** `cleared` when a reviewer withdrew the decision. */
+  decision: Decision | 'cleared'
+  note: string
+  by: string | null
+}
+
+/**
+ * Every decision made on the given frames, oldest first: the decisions table holds only the
+ * standing one, the audit log keeps each change with who made it and when.
+ */
+export async function decisionHistory(db: DbOrTx, teamId: number, frameIds: number[]): Promise<DecisionEvent[]> {
+  if (!frameIds.length) return []
+  const rows = await db.select({
+    frameId: t.auditLog.subjectId, at: t.auditLog.createdAt, action: t.auditLog.action, details: t.auditLog.details, by: t.users.name,
+  }).from(t.auditLog).leftJoin(t.users, eq(t.users.id, t.auditLog.actorId))
+    .where(and(
+      eq(t.auditLog.teamId, teamId), eq(t.auditLog.subjectType, 'frame'),
+      inArray(t.auditLog.action, ['frame.decided', 'frame.decision_cleared']), inArray(t.auditLog.subjectId, frameIds),
+    ))
+    .orderBy(asc(t.auditLog.createdAt), asc(t.auditLog.id))
+  return rows.map((r) => {
+    const d = (r.details ?? {}) as { decision?: Decision; note?: string; previous?: { note?: string } | null }
+    const cleared = r.action === 'frame.decision_cleared'
+    return {
+      frameId: r.frameId!, at: r.at, by: r.by ?? null,
+      decision: cleared ? 'cleared' as const : d.decision!,
+      note: cleared ? '' : d.note ?? '',
+    }
+  })
 }

@@ -33,6 +33,23 @@ export interface SheetRow {
   note: string
   decidedBy: string | null
   decidedAt: Date | null
+  /** Every decision made on the frame, oldest first (the standing one is the last unless cleared). */
+  history?: HistoryStep[]
+}
+
+export interface HistoryStep {
+  at: Date
+  decision: Decision | 'cleared'
+  note: string
+  by: string | null
+}
+
+/** "2026-03-01 10:20 UTC accepted by Ada; … rejected by Ben: too hot" — a history in one cell. */
+export function historyText(steps: HistoryStep[]): string {
+  return steps.map((e) => {
+    const when = `${e.at.toISOString().slice(0, 16).replace('T', ' ')} UTC`
+    return `${when} ${e.decision} by ${e.by ?? 'a former member'}${e.note ? `: ${e.note}` : ''}`
+  }).join('; ')
 }
 
 export interface Blocker {
@@ -158,7 +175,8 @@ export function framesWithScopes(rows: SheetRow[]): SheetRow[] {
 
 export const CSV_COLUMNS = [
   'index', 'timecode', 'name', 'status', 'luma_min_ire', 'luma_max_ire', 'composite_max_ire', 'out_of_range_pct',
-  'verdict', 'reasons', 'decision', 'note', 'decided_by', 'decided_at', 'spec', 'spec_version', 'engine_version',
+  'verdict', 'reasons', 'decision', 'note', 'decided_by', 'decided_at', 'decision_history', 'spec', 'spec_version',
+  'engine_version',
 ] as const
 
 const round = (v: number | null, digits: number) => (v === null ? '' : (Math.round(v * 10 ** digits) / 10 ** digits).toFixed(digits))
@@ -194,6 +212,7 @@ export function csvRecord(r: SheetRow): CsvRecord {
     note: safeText(r.note),
     decided_by: safeText(r.decidedBy ?? ''),
     decided_at: r.decidedAt ? r.decidedAt.toISOString() : '',
+    decision_history: safeText(historyText(r.history ?? [])),
     spec: r.specName ?? '',
     spec_version: r.specVersion === null ? '' : String(r.specVersion),
     engine_version: r.engineVersion ?? '',

@@ -4,7 +4,11 @@
 import { and, asc, desc, eq, isNull } from 'drizzle-orm'
 import type { Db, DbOrTx } from '../db/client'
 import * as t from '../db/schema'
-import type { SheetReason, SheetRow } from './sheet-rules'
+import type { AnalysisJson } from '../../shared/utils/report'
+import { decisionHistory } from './decisions'
+import {
+  signoffBlockers, summarise, type HistoryStep, type Overall, type SheetReason, type SheetRow, type SheetSummary,
+} from './sheet-rules'
 
 export type SignoffRow = typeof t.signoffs.$inferSelect
 
@@ -14,7 +18,8 @@ export const sheetKeys = {
   csv: (teamId: number, reelId: number, signoffId: number) => `teams/${teamId}/reels/${reelId}/sheets/${signoffId}.csv`,
 }
 
-export async function loadSheetRows(db: DbOrTx, reelId: number): Promise<SheetRow[]> {
+/** The sheet's rows in index order; with `history`, each row carries its decision history (for the CSV). */
+export async function loadSheetRows(db: DbOrTx, reelId: number, opts: { history?: boolean } = {}): Promise<SheetRow[]> {
   const rows = await db.select({
     frameId: t.frames.id, seq: t.frames.seq, name: t.frames.name, timecode: t.frames.timecode,
     status: t.frames.status, failReason: t.frames.failReason,
@@ -28,8 +33,16 @@ export async function loadSheetRows(db: DbOrTx, reelId: number): Promise<SheetRo
     .leftJoin(t.users, eq(t.users.id, t.decisions.decidedBy))
     .where(eq(t.frames.reelId, reelId))
     .orderBy(asc(t.frames.seq))
+  const byFrame = new Map<number, HistoryStep[]>()
+  if (opts.history) {
+    const [reel] = await db.select({ teamId: t.reels.teamId }).from(t.reels).where(eq(t.reels.id, reelId))
+    for (const { frameId, ...step } of reel ? await decisionHistory(db, reel.teamId, rows.map((r) => r.frameId)) : []) {
+      byFrame.set(frameId, [...(byFrame.get(frameId) ?? []), step])
+    }
+  }
   return rows.map(({ result, ...r }) => ({
     ...r,
+    ...(opts.history ? { history: byFrame.get(r.frameId) ?? [] } : {}),
     // An analysis row can outlive a status flip; the sheet trusts the row, not the flag.
     verdict: r.status === 'done' ? r.verdict : null,
     note: r.note ?? '',
@@ -74,7 +87,35 @@ export async function loadSheetContext(db: Db, signoffId: number) {
       .innerJoin(t.teams, eq(t.teams.id, t.signoffs.teamId))
       .where(eq(t.signoffs.id, signoffId)).limit(1)
     if (!head) return null
-    const rows = await loadSheetRows(tx, head.reel.id)
+    const rows = await loadSheetRows(tx, head.reel.id, { history: true })
     return { ...head, rows }
   })
+}
+
+/**
+ * Where a reel stands on its way to a sheet, for the reel page and the production's reel list:
+ * signed (with the result as signed and the state of its PDF), or open (with the result a
+ * sign-off now would print and how many things block it).
+ */
+export interface ReelSheetState {
+  signed: boolean
+  overall: Overall
+  blockers: number
+  signerName: string | null
+  signedAt: Date | null
+  sheetStatus: 'pending' | 'ready' | 'failed' | null
+}
+
+export async function reelSheetState(db: DbOrTx, reelId: number): Promise<ReelSheetState> {
+  const [rows, current] = await Promise.all([loadSheetRows(db, reelId), currentSignoff(db, reelId)])
+  // A signed reel is read-only, so its live rows give the result that was signed.
+  const summary = (current?.summary as SheetSummary | null) ?? summarise(rows)
+  return {
+    signed: !!current,
+    overall: summary.overall,
+    blockers: current ? 0 : signoffBlockers(rows).length,
+    signerName: current?.signerName ?? null,
+    signedAt: current?.signedAt ?? null,
+    sheetStatus: current?.sheetStatus ?? null,
+  }
 }

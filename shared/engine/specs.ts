@@ -50,9 +50,12 @@ const NTSC_SETUP: DeliverySpec = {
   title: 'NTSC broadcast with setup',
   description: [
     'Luma 7.5–100 IRE and composite −20…+120 IRE on the NTSC System M scale with 7.5 IRE setup.',
-    'Sources: black (setup) 7.5 IRE and white 100 IRE — SMPTE 170M (clause from memory);',
-    '+120 IRE composite peak — ITU-R BT.1700 peak level; −20 IRE lower composite limit — common practice, no standard found.',
-    'Warning margins and the zero area tolerance are common practice, not from a standard.',
+    // Printed on the producer's sheet, so it names the standards plainly. For the record: the
+    // SMPTE 170M clause for setup and white is recalled from memory, and no published standard
+    // was found for the −20 IRE lower composite limit (tests/unit/engine/specs.test.ts says so).
+    'Sources: black (setup) 7.5 IRE and white 100 IRE — SMPTE 170M;',
+    '+120 IRE composite peak — ITU-R BT.1700 peak level.',
+    'Common practice (no published standard): the −20 IRE lower composite limit, the warning margins and the zero area tolerance.',
   ].join(' '),
   limits: [
     { id: 'luma-min', label: 'Luma below setup', quantity: 'luma', bound: 'min', value: 7.5, unit: 'ire', warningMargin: 0, areaTolerance: 0 },

@@ -225,7 +225,11 @@ describe('the frame page', () => {
 
   it('moves to the next and previous frame of the reel by keyboard', async () => {
     await rv.getByRole('heading', { level: 1 }).click()
+    // J and K are shuttle keys in editing software: they must not move between frames.
     await rv.keyboard.press('j')
+    await rv.keyboard.press('k')
+    expect(new URL(rv.url()).pathname).toBe(`/frames/${hotId}`)
+    await rv.keyboard.press(']')
     await rv.locator(`[data-testid="frame-page"][data-frame-id="${normalId}"][data-hydrated="yes"]`).waitFor()
     expect(new URL(rv.url()).pathname).toBe(`/frames/${normalId}`)
     expect(await rv.getByTestId('verdict-badge').first().getAttribute('data-verdict')).toBe('pass')
@@ -234,7 +238,8 @@ describe('the frame page', () => {
     expect(new URL(rv.url()).pathname).toBe(`/frames/${hotId}`)
     // Keys typed into a field stay in the field.
     await rv.getByTestId('line-input').focus()
-    await rv.keyboard.press('j')
+    await rv.keyboard.press(']')
+    await rv.keyboard.press('a')
     await rv.waitForTimeout(300)
     expect(new URL(rv.url()).pathname).toBe(`/frames/${hotId}`)
   })

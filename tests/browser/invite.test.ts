@@ -82,7 +82,7 @@ describe('inviting a reviewer', () => {
   })
 
   it('mails a link that opens the invitation', async () => {
-    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM}`))
+    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM.replace(/[()]/g, '\\$&')}`))
     invitationUrl = linkIn(mail, '/invitations/')
     expect(invitationUrl.startsWith(`${APP_URL()}/invitations/`)).toBe(true)
 
@@ -115,18 +115,18 @@ describe('inviting a reviewer', () => {
   })
 
   it('lets the reviewer create a production, naming the field that is missing first', async () => {
-    const name = `Harbour Lights — Ep. ${Date.now() % 1000}`
+    const name = `Tidewrack Mill (fictional) — Ep. ${Date.now() % 1000}`
     await inviteePage.getByTestId('new-production-open').click()
     await inviteePage.getByTestId('new-production-submit').click()
     // ProductionBody's own message (shared/utils/validation.ts), shown beside the field.
     await expect.poll(() => inviteePage.getByTestId('new-production-form').innerText()).toContain('Enter a production name')
     await inviteePage.getByTestId('new-production-name').fill(name)
-    await inviteePage.getByTestId('new-production-client').fill('Coastline Pictures')
+    await inviteePage.getByTestId('new-production-client').fill('Brindlecombe Films (fictional)')
     await inviteePage.getByTestId('new-production-submit').click()
     await expect.poll(() => inviteePage.getByTestId('production-created').innerText()).toContain(`“${name}” was created.`)
     const row = inviteePage.getByTestId('production-row').filter({ hasText: name })
     await row.waitFor()
-    expect(await row.innerText()).toContain('Coastline Pictures')
+    expect(await row.innerText()).toContain('Brindlecombe Films (fictional)')
   })
 
   it('opens the production and shows its (still empty) reels', async () => {

@@ -139,7 +139,7 @@ describe('a reel from creation to decisions', () => {
     for (const f of [...files, truncated]) {
       await expect.poll(() => page.locator(`[data-testid="upload-item"][data-name="${f.name}"]`).getAttribute('data-state'), { timeout: 30_000 }).toBe('queued')
     }
-    expect(await page.getByTestId('upload-summary').textContent()).toBe('5 of 5 finished · 4 queued · 1 refused')
+    expect(await page.getByTestId('upload-summary').textContent()).toMatch(/^5 of 5 sent · 4 stored · 1 refused · \d of 4 analysed/)
 
     // The rows appear and reach "done" by polling alone.
     for (const f of files) {
@@ -156,6 +156,15 @@ describe('a reel from creation to decisions', () => {
     await page.getByTestId('failed-frames').getByTestId('failed-frame').filter({ hasText: truncated.name }).waitFor()
     expect(await page.getByTestId('failed-frames').innerText()).toMatch(/1 frame could not be measured[\s\S]*C004_cut_short\.png[\s\S]*cannot be decoded/)
     await expect.poll(() => page.getByTestId('reel-finished').textContent()).toBe('4 of 4')
+    // One truth for each file: once the table shows every frame finished, so does the upload list.
+    await expect.poll(() => page.getByTestId('upload-summary').textContent())
+      .toBe('5 of 5 sent · 4 stored · 1 refused · 4 of 4 analysed, 1 not measured')
+    for (const f of files) {
+      expect(await page.locator(`[data-testid="upload-item"][data-name="${f.name}"]`).getAttribute('data-frame-status')).toBe('done')
+      expect(await page.locator(`[data-testid="upload-item"][data-name="${f.name}"]`).getByTestId('upload-state').innerText())
+        .toBe('stored · measured')
+    }
+    expect(await page.locator(`[data-testid="upload-item"][data-name="${truncated.name}"]`).getAttribute('data-frame-status')).toBe('failed')
     await screen(page, 'reel-03-uploaded-and-measured')
   })
 

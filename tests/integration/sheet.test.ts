@@ -161,9 +161,9 @@ describe('the sheet', () => {
     expect(text).toContain(`Linewise engine ${ENGINE_VERSION}`)
     expect(text).toContain('take precedence over this sheet')
     // Scope pages for the waived hot1 and the rejected hot2 (the undecodable frame has no scopes).
-    expect(text).toContain('Scopes — #2 hot1.png')
-    expect(text).toContain('Scopes — #3 hot2.png')
-    expect(text).not.toContain('Scopes — #4')
+    expect(text).toContain('Frame #2 — hot1.png')
+    expect(text).toContain('Frame #3 — hot2.png')
+    expect(text).not.toContain('Frame #4 —')
   })
 
   it('the CSV parses and equals the database rows', async () => {

@@ -101,7 +101,12 @@ describe('CSV', () => {
     const decidedAt = new Date('2026-03-01T10:20:30.000Z')
     const rows = [
       row({ seq: 1, name: 'a, "b".png', timecode: '01:00:00:01', lumaMinIre: -3.14159, lumaMaxIre: 104.2, compMaxIre: 121.555, outShare: 0.0123456, verdict: 'fail',
-        reasons: [{ limit: 'luma-max', message: 'Luma above white', severity: 'fail' }], decision: 'waived', note: 'line one\nline two', decidedBy: 'Ada', decidedAt }),
+        reasons: [{ limit: 'luma-max', message: 'Luma above white', severity: 'fail' }], decision: 'waived', note: 'line one\nline two', decidedBy: 'Ada', decidedAt,
+        history: [
+          { at: new Date('2026-03-01T09:00:10.000Z'), decision: 'accepted', note: '', by: 'Ben' },
+          { at: new Date('2026-03-01T09:30:00.000Z'), decision: 'rejected', note: 'too hot', by: null },
+          { at: decidedAt, decision: 'waived', note: 'line one\nline two', by: 'Ada' },
+        ] }),
       row({ seq: 2, status: 'failed', failReason: 'The file cannot be decoded: truncated', verdict: null, lumaMinIre: null, lumaMaxIre: null, compMaxIre: null, outShare: null, specName: null, specVersion: null, engineVersion: null, decision: 'rejected', note: '=bad' }),
     ]
     const text = sheetCsv(rows)
@@ -113,6 +118,9 @@ describe('CSV', () => {
       index: '1', timecode: '01:00:00:01', name: 'a, "b".png', status: 'done', luma_min_ire: '-3.14', luma_max_ire: '104.20', composite_max_ire: '121.56',
       out_of_range_pct: '1.2346', verdict: 'fail', reasons: 'Luma above white', decision: 'waived', note: 'line one\nline two', decided_by: 'Ada',
       decided_at: '2026-03-01T10:20:30.000Z', spec: 'ntsc-setup', spec_version: '1', engine_version: '1.0.0',
+      // Every decision, oldest first: the earlier accept and reject are not lost when a later one replaces them.
+      decision_history: '2026-03-01 09:00 UTC accepted by Ben; 2026-03-01 09:30 UTC rejected by a former member: too hot; '
+        + '2026-03-01 10:20 UTC waived by Ada: line one\nline two',
     })
     expect(parsed[1]).toMatchObject({ status: 'not measured', luma_min_ire: '', verdict: '', reasons: 'The file cannot be decoded: truncated', decision: 'rejected', note: '\'=bad' })
     expect(parsed.map((p) => csvRecord(rows[Number(p.index) - 1]!))).toEqual(parsed)
@@ -129,16 +137,16 @@ describe('PDF', () => {
     ]
     const summary = summarise(rows)
     const pdf = await renderSheetPdf({
-      production: { name: 'Harbour Lights', client: 'Northshore' }, team: { name: 'Unit team' },
+      production: { name: 'Tidewrack Mill (fictional)', client: 'Ombervale Media (fictional)' }, team: { name: 'Unit team' },
       reel: { id: 1, name: 'Day 2 - Camera B', sourceLabel: 'Camera B', sourceRange: 'full', matrix: '601' },
       signoff: { id: 42, signerName: 'Ada Reviewer', signedAt: new Date('2026-05-04T14:03:00Z'), specVersion: 3, engineVersion: '1.0.0' },
-      spec, rows, summary, images: { thumb: async () => null, scope: async () => null },
+      spec, rows, summary, images: { thumb: async () => null, scope: async () => null, picture: async () => null },
     })
     expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-')
     const parser = new PDFParse({ data: new Uint8Array(pdf) })
     const text = (await parser.getText()).text.replace(/\s+/g, ' ')
     await parser.destroy()
-    for (const s of ['Harbour Lights', 'Day 2 - Camera B', 'PASS WITH EXCEPTIONS', 'Ada Reviewer', '2026-05-04 14:03 UTC', 'version 3', 'engine 1.0.0',
+    for (const s of ['Tidewrack Mill (fictional)', 'Day 2 - Camera B', 'PASS WITH EXCEPTIONS', 'Ada Reviewer', '2026-05-04 14:03 UTC', 'version 3', 'engine 1.0.0',
       'wide_01.png', 'close_02.png', '01:02:03:04', '99.9', '104.5', '-2.3', '125.0', '0.420 %', 'Specular glint on the rail', 'ITU-R BT.1700', '120 IRE', '7.5 IRE', '115 IRE']) {
       expect(text, s).toContain(s)
     }

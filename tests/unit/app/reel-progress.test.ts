@@ -11,6 +11,11 @@ describe('reel progress', () => {
     expect(analysisProgress(counts({ total: 3, done: 3 }))).toEqual({ finished: 3, total: 3, share: 1, pending: 0 })
   })
 
+  it('counts files still being sent as frames to come, so an upload never reads 100 %', () => {
+    expect(analysisProgress(counts({}), 6)).toEqual({ finished: 0, total: 6, share: 0, pending: 6 })
+    expect(analysisProgress(counts({ total: 2, done: 2 }), 2)).toEqual({ finished: 2, total: 4, share: 0.5, pending: 2 })
+  })
+
   it('treats an empty or unknown reel as having nothing to wait for', () => {
     expect(analysisProgress(counts({}))).toEqual({ finished: 0, total: 0, share: 1, pending: 0 })
     expect(analysisProgress(null).pending).toBe(0)

@@ -14,6 +14,11 @@ describe('built-in delivery specs', () => {
     }
     expect(builtinSpec('ntsc-setup')!.description).toMatch(/SMPTE 170M/)
     expect(builtinSpec('ntsc-setup')!.description).toMatch(/BT\.1700/)
+    // The description is printed on the producer's sheet: it cites the standard and says
+    // plainly what is common practice, without the engineers' caveats (SMPTE 170M's clause is
+    // recalled from memory; no published standard was found for the −20 IRE composite floor).
+    expect(builtinSpec('ntsc-setup')!.description).toMatch(/Common practice \(no published standard\): the −20 IRE/)
+    for (const s of BUILTIN_SPECS) expect(s.description).not.toMatch(/from memory|no standard found/i)
     expect(builtinSpec('digital-studio')!.description).toMatch(/BT\.601/)
     expect(builtinSpec('ebu-r103-v3')!.description).toMatch(/R 103 v3\.0.*supersedes the v1/)
   })

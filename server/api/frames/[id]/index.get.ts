@@ -1,6 +1,7 @@
-import { and, asc, desc, eq, gt, lt } from 'drizzle-orm'
+import { and, asc, desc, eq, gt, isNull, lt, ne } from 'drizzle-orm'
 import type { FrameImageKind } from '../../../../shared/utils/frame-images'
 import { IdParams } from '../../../../shared/utils/validation'
+import { decisionHistory } from '../../../lib/decisions'
 
 /**
  * One frame: its record and, once analysed, the analysis with the same field names as
@@ -18,6 +19,17 @@ export default defineEventHandler(async (event) => {
     .where(and(eq(tables.frames.reelId, frame.reelId), lt(tables.frames.seq, frame.seq))).orderBy(desc(tables.frames.seq)).limit(1)
   const [next] = await db.select({ id: tables.frames.id }).from(tables.frames)
     .where(and(eq(tables.frames.reelId, frame.reelId), gt(tables.frames.seq, frame.seq))).orderBy(asc(tables.frames.seq)).limit(1)
+  // The next measured frame nobody has decided, after this one and then from the top: where a
+  // reviewer working through the reel goes after saving.
+  const undecided = (after: boolean) => db.select({ id: tables.frames.id }).from(tables.frames)
+    .leftJoin(tables.decisions, eq(tables.decisions.frameId, tables.frames.id))
+    .where(and(
+      eq(tables.frames.reelId, frame.reelId), eq(tables.frames.status, 'done'), isNull(tables.decisions.id), ne(tables.frames.id, frame.id),
+      ...(after ? [gt(tables.frames.seq, frame.seq)] : []),
+    )).orderBy(asc(tables.frames.seq)).limit(1)
+  const later = await undecided(true)
+  const [nextUndecided] = later.length ? later : await undecided(false)
+  const history = await decisionHistory(db, frame.teamId, [frame.id])
   const [reel] = await db.select({
     id: tables.reels.id, name: tables.reels.name, sourceLabel: tables.reels.sourceLabel, sourceRange: tables.reels.sourceRange,
     matrix: tables.reels.matrix, signedAt: tables.reels.signedAt, productionId: tables.productions.id, productionName: tables.productions.name,
@@ -29,7 +41,8 @@ export default defineEventHandler(async (event) => {
     frame: pub,
     role,
     reel,
-    neighbours: { prevId: prev?.id ?? null, nextId: next?.id ?? null },
+    neighbours: { prevId: prev?.id ?? null, nextId: next?.id ?? null, nextUndecidedId: nextUndecided?.id ?? null },
+    history: history.map(({ frameId: _f, ...h }) => h),
     decision: d ? { decision: d.decision.decision, note: d.decision.note, decidedBy: d.by?.id ? d.by : null, decidedAt: d.decision.updatedAt } : null,
     analysis: a
       ? {

@@ -1,6 +1,7 @@
 import { asc, eq, sql } from 'drizzle-orm'
 import { IdParams } from '../../../../shared/utils/validation'
 import { specForProduction } from '../../../lib/specs'
+import { reelSheetState } from '../../../lib/sheet'
 
 /** The production overview: its reels with counts by status, verdict and decision, and the spec. */
 export default defineEventHandler(async (event) => {
@@ -31,16 +32,18 @@ export default defineEventHandler(async (event) => {
     .groupBy(tables.reels.id)
     .orderBy(asc(tables.reels.createdAt))
   const { spec, version, id: specId } = await specForProduction(db, production.id)
+  const sheets = await Promise.all(reels.map(({ reel }) => reelSheetState(db, reel.id)))
   return {
     ...production,
     role,
     spec: { id: specId, name: spec.name, title: spec.title, version },
-    reels: reels.map(({ reel, lastFrameAt, ...c }) => {
+    reels: reels.map(({ reel, lastFrameAt, ...c }, i) => {
       const counts = Object.fromEntries(Object.entries(c).map(([k, v]) => [k, Number(v ?? 0)])) as Record<keyof typeof c, number>
       const decided = counts.accepted + counts.rejected + counts.waived
       const last = lastFrameAt ? new Date(lastFrameAt as unknown as string) : null
       return {
         ...reel,
+        sheet: sheets[i]!,
         counts: { ...counts, undecided: counts.done - decided },
         lastActivity: last && last > reel.updatedAt ? last : reel.updatedAt,
       }

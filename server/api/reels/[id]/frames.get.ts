@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, isNull, like, sql, type SQL } from 'drizzle-orm'
+import { and, asc, desc, eq, inArray, isNull, like, sql, type SQL } from 'drizzle-orm'
 import { z } from 'zod'
 import { IdParams } from '../../../../shared/utils/validation'
 import { FRAME_STATUSES } from '../../../../shared/utils/uploads'
@@ -16,6 +16,9 @@ const Query = z.object({
   q: z.string().trim().max(100).optional(),
   sort: z.enum(Object.keys(SORTS) as [keyof typeof SORTS]).default('seq'),
   dir: z.enum(['asc', 'desc']).default('asc'),
+  /** Only these frames (the upload panel follows the files it sent): comma-separated ids, at most 500. */
+  ids: z.string().regex(/^\d{1,12}(,\d{1,12}){0,499}$/, 'ids: up to 500 frame ids, comma-separated').optional()
+    .transform((v) => (v ? v.split(',').map(Number) : undefined)),
 })
 
 /** Frames of a reel with status, verdict and key figures (IRE, 7.5 setup), paginated in SQL. */
@@ -24,6 +27,7 @@ export default defineEventHandler(async (event) => {
   const { reel } = await requireReel(event, id, 'view')
   const q = await getValidatedQuery(event, Query.parse)
   const where: SQL[] = [eq(tables.frames.reelId, reel.id), eq(tables.frames.teamId, reel.teamId)]
+  if (q.ids) where.push(inArray(tables.frames.id, q.ids))
   if (q.status) where.push(eq(tables.frames.status, q.status))
   if (q.verdict) where.push(eq(tables.analyses.verdict, q.verdict))
   if (q.decision === 'none') where.push(isNull(tables.decisions.id))

@@ -1,6 +1,7 @@
 import { eq, sql } from 'drizzle-orm'
 import { IdParams } from '../../../../shared/utils/validation'
 import { specForProduction } from '../../../lib/specs'
+import { reelSheetState } from '../../../lib/sheet'
 
 /** The reel with its production, the spec it is measured against and counts by status and verdict. */
 export default defineEventHandler(async (event) => {
@@ -26,11 +27,13 @@ export default defineEventHandler(async (event) => {
     .leftJoin(tables.decisions, eq(tables.decisions.frameId, tables.frames.id)).where(eq(tables.frames.reelId, reel.id))
   const { spec, version } = await specForProduction(db, reel.productionId)
   const n = (v: unknown) => Number(v ?? 0)
+  const sheet = await reelSheetState(db, reel.id)
   return {
     ...reel,
     role,
     production,
     spec: { name: spec.name, title: spec.title, version },
+    sheet,
     // MariaDB answers sums as strings.
     counts: {
       total: n(counts?.total), queued: n(counts?.queued), analysing: n(counts?.analysing), done: n(counts?.done), failed: n(counts?.failed),

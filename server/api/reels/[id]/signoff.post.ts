@@ -35,7 +35,7 @@ export default defineEventHandler(async (event) => {
     const summary = summarise(rows)
     const [inserted] = await tx.insert(tables.signoffs).values({
       teamId: reel.teamId, reelId: reel.id, signedBy: user.id, signerName: user.name, signedAt,
-      specName: spec.name, specTitle: spec.title, specVersion: version, specBody: spec, engineVersion: ENGINE_VERSION,
+      specName: spec.name, specTitle: spec.title, specVersion: version, specBody: spec, engineVersion: ENGINE_VERSION, summary,
     }).$returningId()
     const signoffId = inserted!.id
     await tx.update(tables.reels).set({ signedAt, signedBy: user.id }).where(eq(tables.reels.id, reel.id))
