@@ -3,8 +3,8 @@
 // marks on nothing; the PDF needs them composed, as the frame page composes them in CSS.)
 import sharp, { type OverlayOptions, type Sharp } from 'sharp'
 import type { MatrixName } from '../../shared/engine/types'
-import { decodeBytes } from './decode-file'
-import { renderPicture } from './preview'
+import { decodeBytes } from '../../server/lib/decode-file'
+import { renderPicture } from '../../shared/engine/index'
 
 /** Wide enough for a full-width picture on an A4 page at print resolution, small in the PDF. */
 export const SHEET_PICTURE_WIDTH = 1400
