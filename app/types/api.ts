@@ -1,11 +1,13 @@
 import type { Role } from '#shared/utils/roles'
 import type { Decision } from '#shared/utils/decisions'
 import type { FrameFormat, FrameStatus } from '#shared/utils/uploads'
+import type { FrameRateName } from '#shared/utils/timecode'
 
 // Shapes of the JSON the routes answer with; dates arrive as ISO strings.
 export interface ProductionRow { id: number; name: string; client: string; reelCount: number; createdAt: string; updatedAt: string }
 export interface ReelRow {
   id: number; name: string; sourceLabel: string; sourceRange: 'full' | 'studio'; matrix: '601' | '709'
+  frameRate: FrameRateName | null; dropFrame: boolean
   signedAt?: string | null; createdAt: string; updatedAt: string
 }
 export interface SpecRef { id?: number | null; name: string; title: string; version: number }
@@ -22,6 +24,7 @@ export interface ProductionDetail {
 export interface ReelDetail extends ReelRow {
   teamId: number; productionId: number; role: Role
   production: { id: number; name: string }; spec: SpecRef; counts: ReelCounts
+  sizes: { width: number; height: number; frames: number }[]
 }
 export interface FrameDecisionInfo { decision: Decision; note: string; decidedBy: { id: number; name: string } | null; decidedAt: string }
 export interface FrameListRow {

@@ -5,6 +5,7 @@ import {
 import { ROLES } from '../../shared/utils/roles'
 import { FRAME_FORMATS, FRAME_STATUSES } from '../../shared/utils/uploads'
 import { DECISIONS } from '../../shared/utils/decisions'
+import { FRAME_RATE_NAMES, type FrameRateName } from '../../shared/utils/timecode'
 
 // MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
 const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
@@ -89,6 +90,10 @@ export const reels = mysqlTable('reels', {
   sourceLabel: varchar('source_label', { length: 120 }).notNull().default(''),
   sourceRange: mysqlEnum('source_range', ['full', 'studio']).notNull().default('full'),
   matrix: mysqlEnum('matrix', ['601', '709']).notNull().default('601'),
+  /** The frame rate the reel's timecodes count in (null: not given; timecodes are shown as read). */
+  frameRate: mysqlEnum('frame_rate', FRAME_RATE_NAMES as [FrameRateName, ...FrameRateName[]]),
+  /** Drop-frame labels (29.97 and 59.94 only). */
+  dropFrame: boolean('drop_frame').notNull().default(false),
   /** Next frame index; taken under a row lock so concurrent uploads get distinct indexes. */
   nextSeq: int('next_seq').notNull().default(1),
   /** Sign-off: who and when; while set, the reel is read-only until an owner reopens it. */
@@ -185,6 +190,9 @@ export const analyses = mysqlTable('analyses', {
   compMinIre: double('comp_min_ire').notNull(),
   compMaxIre: double('comp_max_ire').notNull(),
   outShare: double('out_share').notNull(),
+  /** The reel settings this analysis was measured with; a job finding others measures again. Null: from before they were kept. */
+  matrix: mysqlEnum('matrix', ['601', '709']),
+  sourceRange: mysqlEnum('source_range', ['full', 'studio']),
   /** The engine's JSON result (same field names as `npm run analyse -- --json`), without pixel data. */
   result: json('result').notNull(),
   histograms: json('histograms').notNull(),

@@ -155,3 +155,21 @@ export function timecodeFromFileName(name: string): ParsedTimecode | null {
 export function formatTimecode(tc: ParsedTimecode): string {
   return formatParsed(tc)
 }
+
+/**
+ * How a timecode read from a file (its metadata or its name) is shown in a reel counting
+ * at `rate`: the canonical label, with ';' when the reel counts drop-frame. Null when the
+ * label cannot exist at that rate (frames beyond the rate, or a label drop-frame skips).
+ * Without a rate the label is shown as read.
+ */
+export function labelAtRate(tc: ParsedTimecode, rate?: FrameRate | null, dropFrame = false): string | null {
+  if (!rate) return formatParsed(tc)
+  const drop = (dropFrame || tc.dropFrame) && canDropFrame(rate)
+  const at = { ...tc, dropFrame: drop }
+  try {
+    timecodeToFrames(at, rate, drop)
+  } catch {
+    return null
+  }
+  return formatParsed(at)
+}

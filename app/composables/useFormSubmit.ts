@@ -1,18 +1,18 @@
-// The submit path of a form that creates something: check the values with the same zod
-// schema the server uses, show a message beside each field or one for the form, send, and
-// keep the button busy meanwhile. One place, so every such form answers alike.
+// The submit path of every form: check the values with the same zod schema the server uses,
+// show a message beside each field or one for the form, send, and keep the button busy
+// meanwhile. One place, so every form answers alike.
 import type { ZodError } from 'zod'
 
 interface Schema<Out> {
   safeParse(value: unknown): { success: true, data: Out } | { success: false, error: ZodError }
 }
 
-export function useCreateForm<Out, Created>(schema: Schema<Out>, send: (data: Out) => Promise<Created>, failMessage: string) {
+export function useFormSubmit<Out, Created>(schema: Schema<Out>, send: (data: Out) => Promise<Created>, failMessage: string) {
   const errors = ref<Record<string, string>>({})
   const formError = ref('')
   const busy = ref(false)
 
-  /** The created thing, or undefined when the values or the request were refused (the reason is shown). */
+  /** The answer, or undefined when the values or the request were refused (the reason is shown). */
   async function submit(values: unknown): Promise<Created | undefined> {
     formError.value = ''
     const parsed = schema.safeParse(values)
