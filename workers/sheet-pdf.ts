@@ -3,6 +3,7 @@
 // scopes of every frame that failed or was overridden by a person.
 import { createRequire } from 'node:module'
 import { readFileSync } from 'node:fs'
+import { NO_TIMECODE } from '../shared/utils/timecode'
 import PDFDocument from 'pdfkit'
 import { SCALE_LABELS, type DeliverySpec, type LevelScale } from '../shared/engine'
 import { DECISION_LABELS } from '../shared/utils/decisions'
@@ -271,7 +272,7 @@ async function framesTable(doc: Doc, input: SheetInput, left: number, width: num
       doc.font(opts.font ?? 'regular').fontSize(opts.size ?? 8).fillColor(opts.colour ?? INK)
         .text(text, xs[i]! + 3, y + 5, { width: widths[i]! - 6, align: opts.right ? 'right' : 'left' })
     }
-    cell(1, `#${r.seq}${r.timecode ? `\n${r.timecode}` : ''}`, { font: 'mono' })
+    cell(1, `#${r.seq}\n${r.timecode ?? NO_TIMECODE}`, { font: 'mono' })
     cell(2, r.name)
     if (reasons) doc.font('regular').fontSize(7).fillColor(MUTED).text(reasons, xs[2]! + 3, doc.y + 2, { width: widths[2]! - 6 })
     cell(3, fmt(r.lumaMinIre), { font: 'mono', right: true })

@@ -11,6 +11,9 @@
  * Plain TypeScript with no imports: used by the worker, the server and the browser.
  */
 
+/** What a frame without a timecode shows where its timecode would be (table, frame page, sheet, CSV). */
+export const NO_TIMECODE = 'no timecode'
+
 /** A frame rate as an exact fraction, e.g. 30000/1001 for 29.97. */
 export interface FrameRate { num: number, den: number }
 
