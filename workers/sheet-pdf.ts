@@ -5,7 +5,7 @@ import { createRequire } from 'node:module'
 import { readFileSync } from 'node:fs'
 import { NO_TIMECODE } from '../shared/utils/timecode'
 import PDFDocument from 'pdfkit'
-import { SCALE_LABELS, type DeliverySpec, type LevelScale } from '../shared/engine'
+import { SCALE_LABELS, vectorscopeMarks, waveformScaleMarks, type DeliverySpec, type LevelScale } from '../shared/engine'
 import { DECISION_LABELS } from '../shared/utils/decisions'
 import { OVERALL_LABELS, framesWithScopes, type SheetRow, type SheetSummary } from '../server/lib/sheet-rules'
 
@@ -313,13 +313,51 @@ async function scopePages(doc: Doc, input: SheetInput, left: number, width: numb
       doc.rect(x, y + 11, cw, ch).fill('#0b0d10')
       if (img) {
         try {
-          doc.image(Buffer.from(img), x, y + 11, { fit: [cw, ch], align: 'center', valign: 'center' })
+          scopeImage(doc, kind, Buffer.from(img), { x, y: y + 11, w: cw, h: ch }, input.reel.matrix === '709' ? '709' : '601')
           continue
         } catch { /* falls through to the note below */ }
       }
       doc.font('regular').fontSize(8).fillColor('#ffffff').text('image not available', x + 8, y + 20, { width: cw - 16 })
     }
   }
+}
+
+/** Width and height from a PNG's IHDR (bytes 16–23, big-endian; PNG 2nd edition 11.2.2 — memory). */
+function pngSize(png: Buffer): { w: number, h: number } | null {
+  if (png.length < 24 || png.readUInt32BE(12) !== 0x49484452) return null
+  return { w: png.readUInt32BE(16), h: png.readUInt32BE(20) }
+}
+
+const SCALE_COLUMN = 24
+
+/**
+ * A scope image fitted into its box, with its scale written as text over or beside it (the
+ * stored images carry lines, not numbers): waveform levels in IRE down the left, the
+ * vectorscope's target names and skin-tone line by their marks.
+ */
+function scopeImage(doc: Doc, kind: ScopeKind, img: Buffer, box: { x: number, y: number, w: number, h: number }, matrix: '601' | '709') {
+  const size = pngSize(img)
+  const waveform = kind === 'waveform-luma' || kind === 'waveform-flat'
+  const area = waveform ? { ...box, x: box.x + SCALE_COLUMN, w: box.w - SCALE_COLUMN } : box
+  doc.image(img, area.x, area.y, { fit: [area.w, area.h], align: 'center', valign: 'center' })
+  if (!size || (!waveform && kind !== 'vectorscope')) return
+  const k = Math.min(area.w / size.w, area.h / size.h)
+  const placed = { x: area.x + (area.w - size.w * k) / 2, y: area.y + (area.h - size.h * k) / 2, w: size.w * k, h: size.h * k }
+  if (waveform) {
+    for (const m of waveformScaleMarks('ire')) {
+      doc.font('mono').fontSize(7).fillColor(m.key ? '#de9e48' : '#c8d0da')
+        .text(m.label, box.x + 1, placed.y + m.y * placed.h - 3.5, { width: placed.x - box.x - 3, align: 'right', lineBreak: false })
+    }
+    doc.font('regular').fontSize(6.5).fillColor('#c8d0da').text('IRE', box.x + 1, box.y + 2, { width: SCALE_COLUMN - 3, align: 'right', lineBreak: false })
+    return
+  }
+  const marks = vectorscopeMarks(matrix)
+  for (const t of marks.targets) {
+    doc.font('bold').fontSize(7.5).fillColor('#e6ebf0').text(t.letter, placed.x + t.x * placed.w - 8, placed.y + t.y * placed.h - 4, { width: 16, align: 'center', lineBreak: false })
+  }
+  const s = marks.skinTone
+  doc.font('regular').fontSize(7).fillColor('#d69676')
+    .text('skin tone', placed.x + (s.from.x + (s.to.x - s.from.x) * 0.8) * placed.w - 40, placed.y + (s.from.y + (s.to.y - s.from.y) * 0.8) * placed.h - 10, { width: 40, align: 'right', lineBreak: false })
 }
 
 function footers(doc: Doc, input: SheetInput, left: number, width: number) {

@@ -19,3 +19,4 @@ export { vectorscopeCell, VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectors
 export { MASK_DEFAULT_WIDTH, MASK_HIGH, MASK_LOW, maskGeometry, renderMaskLayer } from './mask'
 export { PALETTE, renderHistogram, renderVectorscope, renderWaveform } from './render'
 export type { WaveformMode } from './render'
+export { SKIN_TONE_DEGREES, WAVEFORM_GRATICULE_IRE, WAVEFORM_KEY_IRE, vectorscopeMarks, vectorscopePoint, waveformScaleMarks } from './graticule'
