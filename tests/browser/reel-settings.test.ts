@@ -94,7 +94,7 @@ describe('reel settings, timecode and readable scopes', () => {
     await both('settings-02-reel-settings-form')
     await page.getByTestId('settings-save').click()
     await expect.poll(() => page.getByTestId('settings-notice').innerText()).toContain('being measured again')
-    expect(await page.getByTestId('reel-matrix').innerText()).toBe('BT.601')
+    await expect.poll(() => page.getByTestId('reel-matrix').innerText()).toBe('BT.601')
     await expect.poll(() => row('bars_plain.png').locator('[data-testid="verdict-badge"]').getAttribute('data-verdict'), { timeout: 90_000 }).toBe('pass')
     await expect.poll(() => row('bars_01-00-00-00.png').locator('[data-testid="verdict-badge"]').getAttribute('data-verdict'), { timeout: 90_000 }).toBe('pass')
     expect(await page.getByTestId('matrix-warning').count()).toBe(0)
