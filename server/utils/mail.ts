@@ -26,9 +26,8 @@ export function mailWithLink(opts: { to: string; subject: string; lines: string[
 
 /** An HTML mail body as a complete document with its charset declared. */
 export function htmlDocument(title: string, body: string): string {
-  // Some viewers keep only the body (a mail catcher's HTML view drops the head and serves it
-  // without a charset): every character beyond ASCII is also written as a character
-  // reference, so "—" reads as "—" whatever charset the viewer assumes.
+  // A viewer that keeps only the body, or saves the part without its MIME charset, still shows
+  // "—" as "—": every character beyond ASCII is written as a character reference.
   return asciiOnly(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta http-equiv="Content-Type" content="text/html; charset=utf-8"><title>${escape(title)}</title></head><body>${body}</body></html>`)
 }
 

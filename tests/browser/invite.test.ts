@@ -105,13 +105,17 @@ describe('inviting a reviewer', () => {
       expect(await page.getByText('Failed to load emails').count()).toBe(0)
       await screen(page, `05b-captured-mail-${width}`)
     }
-    // The HTML part viewed on its own (served without a MIME charset) must still read as UTF-8.
+    // The message opened on that page reads as written ("—", not "â€”").
     await page.setViewportSize({ width: 1440, height: 900 })
-    await page.goto(`${MAIL_UI_URL()}/api/email/${mail.id}/html`)
-    const body = await page.locator('body').innerText()
-    expect(body).toContain('— Linewise')
-    expect(body).not.toContain('â€')
-    await screen(page, '05c-captured-mail-html')
+    await page.getByText(mail.subject).first().click()
+    const body = page.frameLocator('iframe[title="Email HTML content"]').locator('body')
+    await expect.poll(() => body.innerText()).toContain('— Linewise')
+    expect(await body.innerText()).not.toContain('â€')
+    await screen(page, '05c-captured-mail-message')
+    // Sent as UTF-8 with the charset declared on the HTML and text parts and in the document.
+    const source = await (await fetch(`${MAIL_UI_URL()}/api/email/${mail.id}/source`)).text()
+    expect(source).toMatch(/Content-Type: text\/html; charset=utf-8/i)
+    expect(source).toMatch(/Content-Type: text\/plain; charset=utf-8/i)
     await page.close()
   })
 
