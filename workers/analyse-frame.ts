@@ -58,46 +58,25 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
   const stored = await loadStoredFrame(db, frameId)
   if (!stored) return { status: 'skipped' } // deleted since it was queued
   const { frame, reel } = stored
-  const [done] = await db.select({ id: t.analyses.id, images: t.analyses.images }).from(t.analyses).where(eq(t.analyses.frameId, frameId)).limit(1)
-  if (done) {
+  const [done] = await db.select({ id: t.analyses.id, images: t.analyses.images, matrix: t.analyses.matrix, sourceRange: t.analyses.sourceRange })
+    .from(t.analyses).where(eq(t.analyses.frameId, frameId)).limit(1)
+  // Measured already with the reel's present settings: a second run writes nothing new.
+  if (done && done.matrix === reel.matrix && done.sourceRange === reel.sourceRange) {
     // Analysed by a version that did not yet store the viewing copy and the line data.
     if (!done.images.includes('picture')) await storeViews(deps, stored, done.images)
     await db.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
     return { status: 'skipped' }
   }
   await db.update(t.frames).set({ status: 'analysing' }).where(and(eq(t.frames.id, frameId), ne(t.frames.status, 'done')))
-
-  const started = performance.now()
   try {
-    const { input } = await decodeStoredFrame(storage, stored)
-    const { spec, version } = await specForProduction(db, reel.productionId)
-    // Density buffers are reused from job to job (8 MB per 1080p frame otherwise allocated
-    // and collected); one scratch per job in flight, returned once its images are drawn.
-    const scratch = scratchPool.pop() ?? new AnalysisScratch()
-    let a: ReturnType<typeof analyseFrame>
-    let images: Awaited<ReturnType<typeof renderFrameImages>>
-    try {
-      a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true, scratch })
-      images = await renderFrameImages(input, a, reel.matrix)
+    // The reel's matrix or range may change while a frame is measured: measure again with
+    // the new settings rather than write a verdict they no longer give (at most a few times).
+    for (let round = 0; ; round++) {
+      const settings = round === 0 ? reel : await reelSettings(db, reel.id)
+      if (!settings) return { status: 'skipped' }
+      const written = await measureAndWrite(frame, { ...reel, ...settings }, deps)
+      if (written || round >= 3) return { status: written ? 'done' : 'skipped' }
     }
-    finally {
-      scratchPool.push(scratch)
-    }
-    await storeImages(storage, frame, images, encodeFrameLines(input))
-    const json = analysisJson(a, spec.name)
-    const histograms = histogramsJson(a.histograms)
-    const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
-    await db.transaction(async (tx) => {
-      // The unique key on frame_id turns a racing second run into a no-op.
-      await tx.insert(t.analyses).values({
-        frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
-        lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
-        compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare,
-        result: json, histograms, images: FRAME_IMAGE_KINDS.filter((k) => k in images), durationMs: Math.round(performance.now() - started),
-      }).onDuplicateKeyUpdate({ set: { frameId } })
-      await tx.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
-    })
-    return { status: 'done' }
   } catch (e) {
     const permanent = e instanceof DecodeFileError || e instanceof UnrecoverableError
     const lastAttempt = job.attemptsMade + 1 >= (job.opts.attempts ?? 1)
@@ -110,4 +89,52 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     }
     throw e
   }
+}
+
+async function reelSettings(db: Db, reelId: number) {
+  const [r] = await db.select({ matrix: t.reels.matrix, sourceRange: t.reels.sourceRange }).from(t.reels).where(eq(t.reels.id, reelId)).limit(1)
+  return r
+}
+
+type FrameRow = typeof t.frames.$inferSelect
+type ReelRow = typeof t.reels.$inferSelect
+
+/** One measurement with the given settings; false when the reel's settings changed meanwhile (nothing written). */
+async function measureAndWrite(frame: FrameRow, reel: ReelRow, deps: AnalyseDeps): Promise<boolean> {
+  const { db, storage } = deps
+  const frameId = frame.id
+  const started = performance.now()
+  const { input } = await decodeStoredFrame(storage, { frame, reel })
+  const { spec, version } = await specForProduction(db, reel.productionId)
+  // Density buffers are reused from job to job (8 MB per 1080p frame otherwise allocated
+  // and collected); one scratch per job in flight, returned once its images are drawn.
+  const scratch = scratchPool.pop() ?? new AnalysisScratch()
+  let a: ReturnType<typeof analyseFrame>
+  let images: Awaited<ReturnType<typeof renderFrameImages>>
+  try {
+    a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true, scratch })
+    images = await renderFrameImages(input, a, reel.matrix)
+  }
+  finally {
+    scratchPool.push(scratch)
+  }
+  await storeImages(storage, frame, images, encodeFrameLines(input))
+  const json = analysisJson(a, spec.name)
+  const histograms = histogramsJson(a.histograms)
+  const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
+  return db.transaction(async (tx) => {
+    // Locked as the settings route locks it: a change lands either before this check or after the write.
+    const [now] = await tx.select({ matrix: t.reels.matrix, sourceRange: t.reels.sourceRange }).from(t.reels).where(eq(t.reels.id, reel.id)).for('update')
+    if (!now || now.matrix !== reel.matrix || now.sourceRange !== reel.sourceRange) return false
+    const row = {
+      frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
+      lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
+      compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare, matrix: reel.matrix, sourceRange: reel.sourceRange,
+      result: json, histograms, images: FRAME_IMAGE_KINDS.filter((k) => k in images), durationMs: Math.round(performance.now() - started),
+    }
+    // One row per frame: a racing second run with the same settings writes the same values.
+    await tx.insert(t.analyses).values(row).onDuplicateKeyUpdate({ set: { ...row, updatedAt: new Date() } })
+    await tx.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
+    return true
+  })
 }

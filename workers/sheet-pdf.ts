@@ -3,8 +3,9 @@
 // scopes of every frame that failed or was overridden by a person.
 import { createRequire } from 'node:module'
 import { readFileSync } from 'node:fs'
+import { NO_TIMECODE } from '../shared/utils/timecode'
 import PDFDocument from 'pdfkit'
-import { SCALE_LABELS, SCALE_LIMIT_UNITS, type DeliverySpec, type LevelScale } from '../shared/engine'
+import { SCALE_LABELS, SCALE_LIMIT_UNITS, vectorscopeMarks, waveformScaleMarks, type DeliverySpec, type LevelScale } from '../shared/engine'
 import { DECISION_LABELS } from '../shared/utils/decisions'
 import { OVERALL_LABELS, framesWithScopes, type SheetRow, type SheetSummary } from '../server/lib/sheet-rules'
 
@@ -276,7 +277,7 @@ async function framesTable(doc: Doc, input: SheetInput, left: number, width: num
       doc.font(opts.font ?? 'regular').fontSize(opts.size ?? 8).fillColor(opts.colour ?? INK)
         .text(text, xs[i]! + 3, y + 5, { width: widths[i]! - 6, align: opts.right ? 'right' : 'left' })
     }
-    cell(1, `#${r.seq}${r.timecode ? `\n${r.timecode}` : ''}`, { font: 'mono' })
+    cell(1, `#${r.seq}\n${r.timecode ?? NO_TIMECODE}`, { font: 'mono' })
     cell(2, r.name)
     if (reasons) doc.font('regular').fontSize(7).fillColor(MUTED).text(reasons, xs[2]! + 3, doc.y + 2, { width: widths[2]! - 6 })
     cell(3, fmt(r.lumaMinIre), { font: 'mono', right: true })
@@ -336,6 +337,7 @@ async function scopePages(doc: Doc, input: SheetInput) {
     y = doc.y + 12
 
     // Below: waveforms on the left, a smaller vectorscope and the words on the right.
+    const scopeMatrix = input.reel.matrix === '709' ? '709' : '601'
     const gap = 16
     const leftW = width * 0.6
     const rightX = left + leftW + gap
@@ -345,12 +347,12 @@ async function scopePages(doc: Doc, input: SheetInput) {
     for (const kind of ['waveform-luma', 'waveform-flat'] as const) {
       label(doc, SCOPE_TITLES[kind], left, ly, leftW)
       ly += 11
-      ly += await placeImage(doc, await input.images.scope(r.frameId, kind), left, ly, leftW, half) + gap / 2
+      ly += await placeImage(doc, await input.images.scope(r.frameId, kind), left, ly, leftW, half, { kind, matrix: scopeMatrix }) + gap / 2
     }
     let ry = y
     label(doc, SCOPE_TITLES.vectorscope, rightX, ry, rightW)
     ry += 11
-    ry += await placeImage(doc, await input.images.scope(r.frameId, 'vectorscope'), rightX, ry, rightW, rightW) + 12
+    ry += await placeImage(doc, await input.images.scope(r.frameId, 'vectorscope'), rightX, ry, rightW, rightW, { kind: 'vectorscope', matrix: scopeMatrix }) + 12
     label(doc, 'Why', rightX, ry, rightW)
     const reasons = r.reasons.length ? r.reasons.map((x) => `• ${x.message}`).join('\n') : 'Within every limit of the spec.'
     doc.font('regular').fontSize(9).fillColor(INK).text(reasons, rightX, ry + 11, { width: rightW })
@@ -364,19 +366,50 @@ async function scopePages(doc: Doc, input: SheetInput) {
   }
 }
 
-/** An image fitted into a box at its own shape, left-aligned; returns the height used. */
-async function placeImage(doc: Doc, img: Uint8Array | null, x: number, y: number, w: number, h: number): Promise<number> {
+/** An image fitted into a box at its own shape, left-aligned; returns the height used. A scope
+ * image gets its scale written as text beside or over it (the stored images carry lines, not numbers). */
+async function placeImage(doc: Doc, img: Uint8Array | null, x: number, y: number, w: number, h: number,
+  scope?: { kind: ScopeKind, matrix: '601' | '709' }): Promise<number> {
   if (img) {
     try {
+      const waveform = scope && scope.kind !== 'vectorscope'
+      const ix = waveform ? x + SCALE_COLUMN : x
+      const iw = waveform ? w - SCALE_COLUMN : w
       // pdfkit's openImage is not in its type declarations; it reads the size without drawing.
       const opened = (doc as Doc & { openImage(src: Buffer): { width: number; height: number } }).openImage(Buffer.from(img))
-      const scale = Math.min(w / opened.width, h / opened.height)
-      doc.image(opened as unknown as Buffer, x, y, { width: opened.width * scale, height: opened.height * scale })
-      return opened.height * scale
+      const scale = Math.min(iw / opened.width, h / opened.height)
+      const placed = { x: ix, y, w: opened.width * scale, h: opened.height * scale }
+      doc.image(opened as unknown as Buffer, placed.x, placed.y, { width: placed.w, height: placed.h })
+      if (scope) scopeLabels(doc, scope.kind, placed, x, scope.matrix)
+      return placed.h
     } catch { /* falls through to the note below */ }
   }
   doc.font('regular').fontSize(8).fillColor(MUTED).text('Image not available.', x, y, { width: w })
   return doc.heightOfString('Image not available.', { width: w })
+}
+
+const SCALE_COLUMN = 24
+
+/**
+ * The scale of a placed scope image as text: waveform levels in IRE down the left (from
+ * `boxX`), the vectorscope's target names and skin-tone line by their marks.
+ */
+function scopeLabels(doc: Doc, kind: ScopeKind, placed: { x: number, y: number, w: number, h: number }, boxX: number, matrix: '601' | '709') {
+  if (kind !== 'vectorscope') {
+    for (const m of waveformScaleMarks('ire')) {
+      doc.font('mono').fontSize(7).fillColor(m.key ? '#b06a10' : '#4a5563')
+        .text(m.label, boxX + 1, placed.y + m.y * placed.h - 3.5, { width: placed.x - boxX - 3, align: 'right', lineBreak: false })
+    }
+    doc.font('regular').fontSize(6.5).fillColor('#4a5563').text('IRE', boxX + 1, placed.y - 9, { width: SCALE_COLUMN - 3, align: 'right', lineBreak: false })
+    return
+  }
+  const marks = vectorscopeMarks(matrix)
+  for (const t of marks.targets) {
+    doc.font('bold').fontSize(7.5).fillColor('#e6ebf0').text(t.letter, placed.x + t.x * placed.w - 8, placed.y + t.y * placed.h - 4, { width: 16, align: 'center', lineBreak: false })
+  }
+  const s = marks.skinTone
+  doc.font('regular').fontSize(7).fillColor('#d69676')
+    .text('skin tone', placed.x + (s.from.x + (s.to.x - s.from.x) * 0.8) * placed.w - 40, placed.y + (s.from.y + (s.to.y - s.from.y) * 0.8) * placed.h - 10, { width: 40, align: 'right', lineBreak: false })
 }
 
 function footers(doc: Doc, input: SheetInput) {

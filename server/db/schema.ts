@@ -9,6 +9,7 @@ import type { DeliverySpec } from '../../shared/engine/specs'
 import type { FrameImageKind } from '../../shared/utils/frame-images'
 import type { AnalysisJson, HistogramsJson } from '../../shared/utils/report'
 import type { SheetSummary } from '../lib/sheet-rules'
+import { FRAME_RATE_NAMES, type FrameRateName } from '../../shared/utils/timecode'
 
 // MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
 const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
@@ -93,6 +94,10 @@ export const reels = mysqlTable('reels', {
   sourceLabel: varchar('source_label', { length: 120 }).notNull().default(''),
   sourceRange: mysqlEnum('source_range', ['full', 'studio']).notNull().default('full'),
   matrix: mysqlEnum('matrix', ['601', '709']).notNull().default('601'),
+  /** The frame rate the reel's timecodes count in (null: not given; timecodes are shown as read). */
+  frameRate: mysqlEnum('frame_rate', FRAME_RATE_NAMES as [FrameRateName, ...FrameRateName[]]),
+  /** Drop-frame labels (29.97 and 59.94 only). */
+  dropFrame: boolean('drop_frame').notNull().default(false),
   /** Next frame index; taken under a row lock so concurrent uploads get distinct indexes. */
   nextSeq: int('next_seq').notNull().default(1),
   /** Sign-off: who and when; while set, the reel is read-only until an owner reopens it. */
@@ -179,6 +184,9 @@ export const analyses = mysqlTable('analyses', {
   compMinIre: double('comp_min_ire').notNull(),
   compMaxIre: double('comp_max_ire').notNull(),
   outShare: double('out_share').notNull(),
+  /** The reel settings this analysis was measured with; a job finding others measures again. Null: from before they were kept. */
+  matrix: mysqlEnum('matrix', ['601', '709']),
+  sourceRange: mysqlEnum('source_range', ['full', 'studio']),
   /** The engine's JSON result (same field names as `npm run analyse -- --json`), without pixel data. */
   result: json('result').$type<AnalysisJson>().notNull(),
   histograms: json('histograms').$type<HistogramsJson>().notNull(),

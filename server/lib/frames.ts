@@ -7,6 +7,7 @@ import type { Queue } from 'bullmq'
 import { firstId, type Db } from '../db/client'
 import * as t from '../db/schema'
 import { analyseJobId, type AnalyseJob } from '../../shared/utils/queues'
+import { FRAME_RATES, labelAtRate, timecodeFromFileName, type FrameRateName } from '../../shared/utils/timecode'
 import { IntakeError, type Inspected } from './intake'
 import { keys, type Storage } from './storage'
 
@@ -41,7 +42,7 @@ export async function createFrame(db: Db, storage: Storage, f: NewFrame): Promis
   // The object goes first: a frame row never points at bytes that are not there.
   if (!f.storedAt) await storage.put(objectKey, f.bytes, contentTypeOf(f.inspected.format), hash)
   return db.transaction(async (tx) => {
-    const [reel] = await tx.select({ nextSeq: t.reels.nextSeq, signedAt: t.reels.signedAt }).from(t.reels).where(eq(t.reels.id, f.reelId)).for('update')
+    const [reel] = await tx.select({ nextSeq: t.reels.nextSeq, signedAt: t.reels.signedAt, frameRate: t.reels.frameRate, dropFrame: t.reels.dropFrame }).from(t.reels).where(eq(t.reels.id, f.reelId)).for('update')
     if (!reel) throw new Error('reel vanished during upload')
     // Checked again under the lock: a sign-off may have landed since the route's first check.
     if (reel.signedAt) throw new IntakeError(409, 'The reel was signed off while this file was arriving; an owner can reopen it')
@@ -49,12 +50,18 @@ export async function createFrame(db: Db, storage: Storage, f: NewFrame): Promis
     if (again) return { frame: again, duplicate: true }
     await tx.update(t.reels).set({ nextSeq: sql`${t.reels.nextSeq} + 1` }).where(eq(t.reels.id, f.reelId))
     const id = firstId(await tx.insert(t.frames).values({
-      teamId: f.teamId, reelId: f.reelId, seq: reel.nextSeq, name: f.name, objectKey, sha256: hash, bytes: f.bytes.length,
+      teamId: f.teamId, reelId: f.reelId, seq: reel.nextSeq, name: f.name, timecode: frameTimecode(f, reel), objectKey, sha256: hash, bytes: f.bytes.length,
       format: f.inspected.format, width: f.inspected.width, height: f.inspected.height, status: 'queued', queuedAt: new Date(), uploadedBy: f.uploadedBy,
     }).$returningId())
     const [frame] = await tx.select().from(t.frames).where(eq(t.frames.id, id))
     return { frame: frame!, duplicate: false }
   })
+}
+
+/** The frame's timecode: from the file's metadata, else from its name, labelled at the reel's rate. */
+export function frameTimecode(f: Pick<NewFrame, 'name' | 'inspected'>, reel: { frameRate: FrameRateName | null; dropFrame: boolean }): string | null {
+  const tc = f.inspected.timecode ?? timecodeFromFileName(f.name)
+  return tc ? labelAtRate(tc, reel.frameRate ? FRAME_RATES[reel.frameRate] : null, reel.dropFrame) : null
 }
 
 /**
@@ -74,6 +81,26 @@ export async function queueFrame(queue: Queue<AnalyseJob>, frameId: number): Pro
     return false
   } finally {
     clearTimeout(timer)
+  }
+}
+
+/**
+ * Queues a frame to be measured again (its reel's matrix or range changed). Idempotent: a
+ * job still waiting keeps its place (it reads the reel's settings when it starts), and a
+ * finished job with the frame's id is removed first, since BullMQ would swallow the new add.
+ * A job already running finds the settings changed before it writes and measures again.
+ */
+export async function requeueFrame(queue: Queue<AnalyseJob>, frameId: number): Promise<boolean> {
+  try {
+    const job = await queue.getJob(analyseJobId(frameId))
+    const state = job ? await job.getState() : 'missing'
+    if (state === 'waiting' || state === 'active' || state === 'delayed' || state === 'prioritized' || state === 'waiting-children') return true
+    if (job) await job.remove().catch(() => {})
+    return await queueFrame(queue, frameId)
+  } catch (e) {
+    // The frame is `queued` in MariaDB: the sweeper queues it once Redis answers.
+    console.error(`[queue] frame ${frameId} not re-queued yet: ${(e as Error).message}`)
+    return false
   }
 }
 

@@ -6,6 +6,7 @@ import sharp from 'sharp'
 import { v210Stride } from '../../shared/engine/decode'
 import { UPLOAD_LIMITS, type FrameFormat } from '../../shared/utils/uploads'
 import { stripInvisible } from '../../shared/utils/text'
+import { parseTimecode, type ParsedTimecode } from '../../shared/utils/timecode'
 
 /** A refused upload: `status` for HTTP, `reason` for the person who sent it. */
 export class IntakeError extends Error {
@@ -56,6 +57,25 @@ export interface Inspected {
   format: FrameFormat
   width: number
   height: number
+  /** A timecode written in the file's metadata (PNG text chunk, XMP), if any. */
+  timecode?: ParsedTimecode | null
+}
+
+/** PNG text keywords taken as a timecode (tEXt/zTXt/iTXt, as sharp lists them). */
+const TIMECODE_KEYWORDS = /^(time[ _-]?code|tc|start[ _-]?time[ _-]?code)$/i
+/** XMP Dynamic Media timecode: `xmpDM:timeValue` (Adobe XMP Specification Part 2, xmpDM Timecode type). */
+const XMP_TIME_VALUE = /xmpDM:timeValue(?:="|>)\s*([0-9:;.]{11})/
+
+/** The timecode a file carries in its metadata: a PNG text chunk first, then XMP (PNG, TIFF, JPEG, WebP). */
+export function embeddedTimecode(meta: { comments?: { keyword: string; text: string }[]; xmpAsString?: string }): ParsedTimecode | null {
+  for (const c of meta.comments ?? []) {
+    if (TIMECODE_KEYWORDS.test(c.keyword.trim())) {
+      const tc = parseTimecode(c.text)
+      if (tc) return tc
+    }
+  }
+  const xmp = meta.xmpAsString && XMP_TIME_VALUE.exec(meta.xmpAsString)
+  return xmp ? parseTimecode(xmp[1]!) : null
 }
 
 /** describeOther reads this many leading bytes; no check looks further without decoding. */
@@ -107,7 +127,7 @@ export async function inspectUpload(bytes: Uint8Array, declared: { format: Frame
   if (meta.width * meta.height > UPLOAD_LIMITS.maxPixels) {
     throw new IntakeError(422, `The picture is ${meta.width}×${meta.height}, more than the ${UPLOAD_LIMITS.maxPixels / 1e6} megapixel limit`)
   }
-  return { format, width: meta.width, height: meta.height }
+  return { format, width: meta.width, height: meta.height, timecode: embeddedTimecode(meta) }
 }
 
 export interface Received {

@@ -3,6 +3,7 @@
 // unit tests, so the page, the PDF and the CSV can never disagree.
 import type { Decision } from '../../shared/utils/decisions'
 import type { FrameStatus } from '../../shared/utils/uploads'
+import { NO_TIMECODE } from '../../shared/utils/timecode'
 import type { Verdict } from '../../shared/engine/types'
 
 export interface SheetReason {
@@ -199,7 +200,7 @@ export type CsvRecord = Record<(typeof CSV_COLUMNS)[number], string>
 export function csvRecord(r: SheetRow): CsvRecord {
   return {
     index: String(r.seq),
-    timecode: r.timecode ?? '',
+    timecode: r.timecode ?? NO_TIMECODE,
     name: safeText(r.name),
     status: r.status === 'failed' ? 'not measured' : r.status,
     luma_min_ire: round(r.lumaMinIre, 2),

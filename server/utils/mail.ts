@@ -13,13 +13,17 @@ export function appUrl(path: string) {
 
 const escape = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`)
 
-/** Plain text plus a small HTML version with one button; all user text escaped. */
+/**
+ * Plain text plus a small HTML version with one button; all user text escaped. The HTML is a
+ * whole document that declares UTF-8 itself: a viewer that serves the part without its MIME
+ * charset (a mail catcher's HTML view, a saved file) still shows "—" and accents as written.
+ */
 export function mailWithLink(opts: { to: string; subject: string; lines: string[]; link: string; action: string }): MailJob {
   const text = [...opts.lines, '', `${opts.action}: ${opts.link}`, '', '— Linewise'].join('\n')
-  const html = `<div style="font-family:sans-serif;font-size:14px;line-height:1.5">${opts.lines.map((l) => `<p>${escape(l)}</p>`).join('')}`
+  const body = `<div style="font-family:sans-serif;font-size:14px;line-height:1.5">${opts.lines.map((l) => `<p>${escape(l)}</p>`).join('')}`
     + `<p><a href="${escape(opts.link)}" style="display:inline-block;padding:8px 14px;background:#1f8f87;color:#fff;border-radius:6px;text-decoration:none">${escape(opts.action)}</a></p>`
     + `<p style="color:#666">Or open this address: ${escape(opts.link)}</p><p style="color:#666">— Linewise</p></div>`
-  return { to: opts.to, subject: opts.subject, text, html }
+  return { to: opts.to, subject: opts.subject, text, html: htmlDocument(opts.subject, body) }
 }
 
 /**
@@ -32,3 +36,12 @@ export async function queueRejectionMails(tx: DbOrTx, a: { teamId: number, frame
     await queueMail(mailWithLink({ ...rejectionMailText(n, { note: a.note, deciderName: a.decider.name }), link: appUrl(`/reels/${n.reelId}`) }))
   }
 }
+
+/** An HTML mail body as a complete document with its charset declared. */
+export function htmlDocument(title: string, body: string): string {
+  // A viewer that keeps only the body, or saves the part without its MIME charset, still shows
+  // "—" as "—": every character beyond ASCII is written as a character reference.
+  return asciiOnly(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta http-equiv="Content-Type" content="text/html; charset=utf-8"><title>${escape(title)}</title></head><body>${body}</body></html>`)
+}
+
+const asciiOnly = (html: string) => html.replace(/[^\x00-\x7f]/gu, (c) => `&#${c.codePointAt(0)};`)

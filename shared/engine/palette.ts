@@ -19,4 +19,6 @@ export const PALETTE = {
   /** Range overlay: levels above a limit, and below one. */
   overlayHigh: [255, 48, 150] as Rgb,
   overlayLow: [24, 170, 255] as Rgb,
+  /** The vectorscope's skin-tone line. */
+  skinTone: [214, 150, 118] as Rgb,
 } as const

@@ -1,17 +1,10 @@
 import { barTargets, resolveMatrix } from './matrix'
 import { PALETTE, type Rgb } from './palette'
+import { SKIN_TONE_DEGREES, WAVEFORM_GRATICULE_IRE } from './graticule'
 import { ireToCode8 } from './scales'
 import { waveformRow } from './waveform'
 import type { Histograms, MatrixName, RgbaImage, VectorscopeDensity, WaveformDensity } from './types'
 
-// A 3×5 pixel font of our own, enough for graticule labels.
-const GLYPHS: Record<string, string> = {
-  '0': '111101101101111', '1': '010110010010111', '2': '111001111100111', '3': '111001111001111',
-  '4': '101101111001001', '5': '111100111001111', '6': '111100111101111', '7': '111001010010010',
-  '8': '111101111101111', '9': '111101111001111', '-': '000000111000000', '.': '000000000000010',
-  'Y': '101101010010010', 'C': '111100100100111', 'G': '111100101101111', 'M': '101111101101101',
-  'R': '110101110101101', 'B': '110101110101110', '%': '101001010100101',
-}
 
 class Canvas {
   readonly data: Uint8ClampedArray
@@ -42,15 +35,6 @@ class Canvas {
 
   vline(x: number, y0: number, y1: number, c: Rgb): void {
     for (let y = y0; y < y1; y++) this.set(x, y, c)
-  }
-
-  text(x: number, y: number, s: string, c: Rgb): void {
-    let cx = x
-    for (const ch of s) {
-      const g = GLYPHS[ch]
-      if (g) for (let i = 0; i < 15; i++) if (g[i] === '1') this.set(cx + (i % 3), y + Math.floor(i / 3), c)
-      cx += 4
-    }
   }
 
   image(): RgbaImage {
@@ -113,22 +97,20 @@ function paintedPixels(cv: Canvas): { at: Int32Array, rgb: Uint8Array } {
 export type WaveformMode = 'luma' | 'flat' | 'both' | 'rgb'
 
 const GUTTER = 22
-const GRATICULE_IRE = [-20, 0, 20, 40, 60, 80, 120]
 const PANE_GAP = 4
 
 function waveformGraticule(width: number, rows: number): Uint8ClampedArray {
   const cv = new Canvas(width, rows, PALETTE.background)
   // Graticule lines go through the same level-to-row mapping as the trace.
   const rowOf = (ire: number) => rows - 1 - waveformRow(ireToCode8(ire))
-  for (const ire of GRATICULE_IRE) {
+  // The numbers are written beside the image as text by the page and the PDF (graticule.ts),
+  // at a readable size and in the reader's unit; the gutter carries a tick for each line.
+  for (const ire of WAVEFORM_GRATICULE_IRE) {
     const y = rowOf(ire)
-    cv.hline(GUTTER, width, y, PALETTE.graticule)
-    cv.text(1, y - 2, String(ire), PALETTE.graticuleLabel)
+    cv.hline(GUTTER - 6, width, y, PALETTE.graticule)
   }
-  cv.hline(GUTTER, width, rowOf(100), PALETTE.keyLine)
-  cv.text(1, rowOf(100) - 2, '100', PALETTE.keyLine)
-  cv.hline(GUTTER, width, rowOf(7.5), PALETTE.keyLine, 3)
-  cv.text(1, rowOf(7.5) - 2, '7.5', PALETTE.keyLine)
+  cv.hline(GUTTER - 6, width, rowOf(100), PALETTE.keyLine)
+  cv.hline(GUTTER - 6, width, rowOf(7.5), PALETTE.keyLine, 3)
   return cv.data
 }
 
@@ -200,11 +182,20 @@ function vectorscopeLayers(v: VectorscopeDensity, matrix: MatrixName, scale: num
   }
   // Burst sits at 180° (SMPTE 170M — memory): a short stub on the −U axis.
   under.hline(px(-0.15), cx, cy + 1, PALETTE.graticuleLabel)
+  // Skin-tone line (the I axis, common practice): dots in our skin-tone colour from the
+  // centre to the edge, under the trace so a face's cluster reads against it.
+  const skin = (SKIN_TONE_DEGREES * Math.PI) / 180
+  const reach = v.extent * 0.97
+  const dots = Math.ceil((reach / (2 * v.extent)) * size)
+  for (let i = 0; i < dots; i += 1) {
+    if (i % 6 > 3) continue
+    const r = (i / dots) * reach
+    under.set(px(r * Math.cos(skin)), py(r * Math.sin(skin)), PALETTE.skinTone)
+  }
 
   // Targets are painted over the trace, so they stay legible where the picture has bars.
   const over = new Canvas(size, size, PALETTE.background)
   over.data.fill(0)
-  const letters: Record<string, string> = { yellow: 'Y', cyan: 'C', green: 'G', magenta: 'M', red: 'R', blue: 'B' }
   for (const t of barTargets(0.75, matrix)) {
     // 75 % targets: a hollow ring of our own size; 100 % targets: a small plus.
     const x = px(t.u); const y = py(t.v)
@@ -212,9 +203,6 @@ function vectorscopeLayers(v: VectorscopeDensity, matrix: MatrixName, scale: num
       const a = i / 48 * 2 * Math.PI
       over.set(Math.round(x + 6 * Math.cos(a)), Math.round(y + 6 * Math.sin(a)), PALETTE.keyLine)
     }
-    const len = Math.hypot(t.u, t.v)
-    const lx = px(t.u + t.u / len * 0.06) - 1; const ly = py(t.v + t.v / len * 0.06) - 2
-    over.text(lx, ly, letters[t.name]!, PALETTE.graticuleLabel)
   }
   for (const t of barTargets(1, matrix)) {
     const x = px(t.u); const y = py(t.v)

@@ -11,6 +11,9 @@
  * Plain TypeScript with no imports: used by the worker, the server and the browser.
  */
 
+/** What a frame without a timecode shows where its timecode would be (table, frame page, sheet, CSV). */
+export const NO_TIMECODE = 'no timecode'
+
 /** A frame rate as an exact fraction, e.g. 30000/1001 for 29.97. */
 export interface FrameRate { num: number, den: number }
 
@@ -154,4 +157,22 @@ export function timecodeFromFileName(name: string): ParsedTimecode | null {
 /** A label in the canonical form for its kind (':' non-drop, ';' drop-frame). */
 export function formatTimecode(tc: ParsedTimecode): string {
   return formatParsed(tc)
+}
+
+/**
+ * How a timecode read from a file (its metadata or its name) is shown in a reel counting
+ * at `rate`: the canonical label, with ';' when the reel counts drop-frame. Null when the
+ * label cannot exist at that rate (frames beyond the rate, or a label drop-frame skips).
+ * Without a rate the label is shown as read.
+ */
+export function labelAtRate(tc: ParsedTimecode, rate?: FrameRate | null, dropFrame = false): string | null {
+  if (!rate) return formatParsed(tc)
+  const drop = (dropFrame || tc.dropFrame) && canDropFrame(rate)
+  const at = { ...tc, dropFrame: drop }
+  try {
+    timecodeToFrames(at, rate, drop)
+  } catch {
+    return null
+  }
+  return formatParsed(at)
 }

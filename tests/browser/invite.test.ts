@@ -6,7 +6,7 @@ import type { Browser, BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_PRODUCTION, DEMO_TEAM, DEMO_USERS } from '../../server/seed/demo'
 import { launchBrowser, screen } from '../support/browser'
-import { APP_URL } from '../support/env'
+import { APP_URL, MAIL_UI_URL } from '../support/env'
 import { linkIn, waitForMail } from '../support/mail'
 
 const owner = DEMO_USERS.find((u) => u.role === 'owner')!
@@ -92,6 +92,31 @@ describe('inviting a reviewer', () => {
     expect(await inviteePage.getByTestId('invitation-email').textContent()).toBe(invitee.email)
     expect(await inviteePage.getByTestId('invitation-role').textContent()).toBe('QC reviewer')
     await screen(inviteePage, '05-invitation')
+  })
+
+  it('shows the invitation on the captured-mail page that `npm start` prints, in UTF-8', async () => {
+    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM}`))
+    // A new user reads the invitation at the printed address, in the same browser as the app.
+    const page = await inviteeCtx.newPage()
+    for (const width of [1440, 390]) {
+      await page.setViewportSize({ width, height: width > 500 ? 900 : 844 })
+      await page.goto(MAIL_UI_URL())
+      await page.getByText(mail.subject).first().waitFor()
+      expect(await page.getByText('Failed to load emails').count()).toBe(0)
+      await screen(page, `05b-captured-mail-${width}`)
+    }
+    // The message opened on that page reads as written ("—", not "â€”").
+    await page.setViewportSize({ width: 1440, height: 900 })
+    await page.getByText(mail.subject).first().click()
+    const body = page.frameLocator('iframe[title="Email HTML content"]').locator('body')
+    await expect.poll(() => body.innerText()).toContain('— Linewise')
+    expect(await body.innerText()).not.toContain('â€')
+    await screen(page, '05c-captured-mail-message')
+    // Sent as UTF-8 with the charset declared on the HTML and text parts and in the document.
+    const source = await (await fetch(`${MAIL_UI_URL()}/api/email/${mail.id}/source`)).text()
+    expect(source).toMatch(/Content-Type: text\/html; charset=utf-8/i)
+    expect(source).toMatch(/Content-Type: text\/plain; charset=utf-8/i)
+    await page.close()
   })
 
   it('asks for matching passwords, then creates the account and shows the team’s productions', async () => {

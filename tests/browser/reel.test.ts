@@ -146,8 +146,10 @@ describe('a reel from creation to decisions', () => {
       await expect.poll(() => cell(page, f.name, 'status').locator('[data-testid="frame-status"]').getAttribute('data-status'), { timeout: 60_000 }).toBe('done')
     }
     expect(await page.evaluate(() => (window as unknown as { lwMarker?: number }).lwMarker)).toBe(4417)
+    // No file carries a timecode (in its metadata or name): the table says so.
+    expect(await page.getByTestId('frame-timecode').allInnerTexts()).toEqual(['no timecode', 'no timecode', 'no timecode', 'no timecode'])
     // Sent in parallel, confirmed in file order: the reel's index follows the file names.
-    expect(await page.getByTestId('frame-row').evaluateAll((rows) => rows.map((r) => [r.querySelector('td[data-col="seq"]')?.textContent?.trim(), r.getAttribute('data-name')])))
+    expect(await page.getByTestId('frame-row').evaluateAll((rows) => rows.map((r) => [r.querySelector('td[data-col="seq"] [data-testid="frame-seq"]')?.textContent?.trim(), r.getAttribute('data-name')])))
       .toEqual([['#1', 'C001_normal.png'], ['#2', 'C002_superwhite.png'], ['#3', 'C003_yellow.png'], ['#4', 'C004_cut_short.png']])
 
     // The cut-short PNG fails in the worker; its reason is shown in the table and in the list of failed frames.

@@ -97,6 +97,11 @@ describe('CSV', () => {
     expect(line).toContain(',"ok",')
   })
 
+  it('says "no timecode" where a frame has none, and writes the label where it has one', () => {
+    expect(csvRecord(row({ seq: 1, timecode: null })).timecode).toBe('no timecode')
+    expect(csvRecord(row({ seq: 2, timecode: '01:00:12;05' })).timecode).toBe('01:00:12;05')
+  })
+
   it('writes one record per frame that parses back to the same fields', () => {
     const decidedAt = new Date('2026-03-01T10:20:30.000Z')
     const rows = [

@@ -7,7 +7,7 @@ import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import {
   FRAME_RATES, canDropFrame, framesToTimecode, nameFrameRate, offsetTimecode, parseTimecode,
-  timecodeFromFileName, timecodeToFrames,
+  labelAtRate, timecodeFromFileName, timecodeToFrames,
 } from '../../shared/utils/timecode'
 
 const r25 = FRAME_RATES['25']
@@ -91,5 +91,29 @@ describe('labels in text', () => {
     expect(nameFrameRate({ num: 2997, den: 100 })).toBe('29.97')
     expect(nameFrameRate({ num: 25, den: 1 })).toBe('25')
     expect(nameFrameRate({ num: 12, den: 1 })).toBeNull()
+  })
+})
+
+describe('labelAtRate: a timecode read from a file, shown at the reel\'s rate (ST 12-1 — memory)', () => {
+  const tc = (s: string) => parseTimecode(s)!
+  it('shows the label as read when the reel gives no rate', () => {
+    expect(labelAtRate(tc('01-00-12-05'))).toBe('01:00:12:05')
+  })
+  it('keeps a label that exists at the rate and refuses one that cannot (frame 29 at 25 fps)', () => {
+    expect(labelAtRate(tc('01:00:12:24'), r25)).toBe('01:00:12:24')
+    expect(labelAtRate(tc('01:00:12:29'), r25)).toBeNull()
+  })
+  it('writes drop-frame labels with ";" in a 29.97 drop-frame reel, and refuses a label drop-frame skips', () => {
+    expect(labelAtRate(tc('01-00-12-05'), r2997, true)).toBe('01:00:12;05')
+    // 00:01:00;00 and ;01 are skipped at minute 1 (not a tenth minute).
+    expect(labelAtRate(tc('00:01:00:01'), r2997, true)).toBeNull()
+    expect(labelAtRate(tc('00:10:00:00'), r2997, true)).toBe('00:10:00;00')
+  })
+  it('ignores drop-frame at a rate that has none (25 fps)', () => {
+    expect(labelAtRate(tc('01:00:12;05'), r25, true)).toBe('01:00:12:05')
+  })
+  it('59.94 drop-frame skips four labels a minute', () => {
+    expect(labelAtRate(tc('00:01:00:03'), r5994, true)).toBeNull()
+    expect(labelAtRate(tc('00:01:00:04'), r5994, true)).toBe('00:01:00;04')
   })
 })

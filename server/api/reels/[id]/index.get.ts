@@ -25,6 +25,9 @@ export default defineEventHandler(async (event) => {
     waived: sql<number>`coalesce(sum(${tables.decisions.decision} = 'waived'), 0)`,
   }).from(tables.frames).leftJoin(tables.analyses, eq(tables.analyses.frameId, tables.frames.id))
     .leftJoin(tables.decisions, eq(tables.decisions.frameId, tables.frames.id)).where(eq(tables.frames.reelId, reel.id))
+  // Picture sizes in the reel, so the page can say when they do not suit the reel's matrix.
+  const sizes = await db.select({ width: tables.frames.width, height: tables.frames.height, frames: sql<number>`count(*)` })
+    .from(tables.frames).where(eq(tables.frames.reelId, reel.id)).groupBy(tables.frames.width, tables.frames.height)
   const { spec, version } = await specForProduction(db, reel.productionId)
   const n = (v: unknown) => Number(v ?? 0)
   const sheet = await reelSheetState(db, reel.id)
@@ -33,6 +36,7 @@ export default defineEventHandler(async (event) => {
     role,
     production,
     spec: { name: spec.name, title: spec.title, version },
+    sizes: sizes.map((s) => ({ ...s, frames: n(s.frames) })),
     sheet,
     // MariaDB answers sums as strings.
     counts: {
