@@ -3,7 +3,7 @@
 // analysis row and writes nothing new.
 import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
-import { AnalysisScratch, ENGINE_VERSION, analyseFrame } from '../shared/engine'
+import { AnalysisScratch, ENGINE_VERSION, analyseFrame, evaluateSpec, packLevels } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
 import { analysisJson } from '../shared/utils/report'
 import type { Db } from '../server/db/client'
@@ -58,7 +58,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
       range: reel.sourceRange, raw: isRaw ? (frame.format as 'uyvy' | 'v210') : undefined,
       width: frame.width, height: frame.height, maxPixels: UPLOAD_LIMITS.maxPixels,
     })
-    const { spec, version } = await specForProduction(db, reel.productionId)
+    const { spec, version, id: specId } = await specForProduction(db, reel.productionId)
     // Density buffers are reused from job to job (8 MB per 1080p frame otherwise allocated
     // and collected); one scratch per job in flight, returned once its images are drawn.
     const scratch = scratchPool.pop() ?? new AnalysisScratch()
@@ -73,7 +73,7 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     }
     await Promise.all(Object.entries(images).map(([kind, img]) =>
       storage.put(keys.image(frame.teamId, frame.id, kind), img.data, img.contentType)))
-    const json = analysisJson(a, spec.name)
+    const levels = packLevels(a.histograms.levels)
     const h = a.histograms
     const histograms = {
       bins: h.bins, rgbCoding: h.rgbCoding,
@@ -81,12 +81,18 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     }
     const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
     await db.transaction(async (tx) => {
+      // The production's spec may have changed (and its frames been re-judged) while this frame
+      // was measured: lock the production as a re-judge does, and judge against the spec it has now.
+      await tx.select({ id: t.productions.id }).from(t.productions).where(eq(t.productions.id, reel.productionId)).for('update')
+      const now = await specForProduction(tx, reel.productionId)
+      const judged = now.id === specId && now.version === version ? a : { ...a, ...evaluateSpec(a, now.spec) }
+      const json = analysisJson(judged, now.spec.name)
       // The unique key on frame_id turns a racing second run into a no-op.
       await tx.insert(t.analyses).values({
-        frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
+        frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: now.spec.name, specVersion: now.version, verdict: judged.verdict,
         lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
         compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare,
-        result: json, histograms, images: Object.keys(images), durationMs: Math.round(performance.now() - started),
+        result: json, histograms, levels, images: Object.keys(images), durationMs: Math.round(performance.now() - started),
       }).onDuplicateKeyUpdate({ set: { frameId } })
       await tx.update(t.frames).set({ status: 'done', failReason: null }).where(eq(t.frames.id, frameId))
     })

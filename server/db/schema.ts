@@ -188,6 +188,8 @@ export const analyses = mysqlTable('analyses', {
   /** The engine's JSON result (same field names as `npm run analyse -- --json`), without pixel data. */
   result: json('result').notNull(),
   histograms: json('histograms').notNull(),
+  /** Packed level distributions (shared/engine/pack.ts): a changed spec is judged again from these. Null before they were kept. */
+  levels: json('levels'),
   images: json('images').notNull(),
   durationMs: int('duration_ms').notNull(),
   ...timestamps,
@@ -206,6 +208,9 @@ export const decisions = mysqlTable('decisions', {
   decision: mysqlEnum('decision', DECISIONS).notNull(),
   note: varchar('note', { length: 1000 }).notNull().default(''),
   decidedBy: ref('decided_by').references(() => users.id, { onDelete: 'set null' }),
+  /** Set when a re-judge changed the frame's verdict after this decision: kept, but to be looked at again. */
+  recheckAt: datetime('recheck_at', { mode: 'date', fsp: 3 }),
+  recheckNote: varchar('recheck_note', { length: 300 }),
   ...timestamps,
 }, (t) => [uniqueIndex('decisions_frame_uq').on(t.frameId), index('decisions_team_idx').on(t.teamId)])
 
@@ -240,3 +245,21 @@ export const signoffs = mysqlTable('signoffs', {
   reopenReason: varchar('reopen_reason', { length: 1000 }),
   ...timestamps,
 }, (t) => [index('signoffs_reel_idx').on(t.reelId, t.signedAt), index('signoffs_team_idx').on(t.teamId)])
+
+/**
+ * Every saved version of a team's delivery spec, as it was; delivery_specs holds the current one.
+ * Analyses and sign-offs name the version they were judged against.
+ */
+export const deliverySpecVersions = mysqlTable('delivery_spec_versions', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  specId: ref('spec_id').notNull().references(() => deliverySpecs.id, { onDelete: 'cascade' }),
+  version: int('version').notNull(),
+  body: json('body').notNull(),
+  /** What changed from the previous version, in words (shared/utils/specs.ts describeSpecChanges). */
+  changes: json('changes').notNull(),
+  /** What re-judging changed when this version was applied: counts by transition. */
+  rejudge: json('rejudge'),
+  createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+}, (t) => [uniqueIndex('delivery_spec_versions_uq').on(t.specId, t.version), index('delivery_spec_versions_team_idx').on(t.teamId)])

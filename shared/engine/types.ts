@@ -116,6 +116,12 @@ export interface LevelDistributions {
   r: Uint32Array
   g: Uint32Array
   b: Uint32Array
+  /**
+   * Per-pixel max and min of R', G', B' after the spatial low-pass filter of lowpass.ts (EBU R 103
+   * practice). Absent from analyses stored before it was measured.
+   */
+  rgbMaxLp?: Uint32Array
+  rgbMinLp?: Uint32Array
 }
 
 export interface Histograms {

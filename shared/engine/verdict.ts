@@ -4,7 +4,7 @@ import type { DeliverySpec, SpecLimit } from './specs'
 import type { FrameAnalysis, Verdict, VerdictReason } from './types'
 import { shareAbove, shareBelow } from './levels'
 
-type Measured = Pick<FrameAnalysis, 'width' | 'height' | 'histograms' | 'luma' | 'compositeIre' | 'chroma'>
+export type Measured = Pick<FrameAnalysis, 'width' | 'height' | 'histograms' | 'luma' | 'compositeIre' | 'chroma'>
 
 interface Dist { data: Uint32Array, min: number, step: number }
 
@@ -15,7 +15,11 @@ function distFor(a: Measured, l: SpecLimit): Dist {
   switch (l.quantity) {
     case 'luma': return level(lv.luma)
     case 'composite': return level(l.bound === 'max' ? lv.compMax : lv.compMin)
-    case 'rgb': return level(l.bound === 'max' ? lv.rgbMax : lv.rgbMin)
+    case 'rgb': {
+      // An analysis stored before the filtered gamut was measured is judged unfiltered (stricter).
+      const lp = l.filter === 'lowpass' ? (l.bound === 'max' ? lv.rgbMaxLp : lv.rgbMinLp) : undefined
+      return level(lp ?? (l.bound === 'max' ? lv.rgbMax : lv.rgbMin))
+    }
     case 'cb': return coarse(a.histograms.cb)
     case 'cr': return coarse(a.histograms.cr)
   }
@@ -85,7 +89,7 @@ export function evaluateSpec(a: Measured, spec: DeliverySpec): SpecEvaluation {
     const threshold = severity === 'fail' ? l.value : l.value + inward
     const value = fromCode8(extreme(a, l, d), l)
     const side = l.bound === 'max' ? 'above' : 'below'
-    const message = `${l.label}: ${l.bound === 'max' ? 'peaks at' : 'reaches'} ${fmt(value, l)}; `
+    const message = `${l.label}${l.filter === 'lowpass' ? ' (after low-pass)' : ''}: ${l.bound === 'max' ? 'peaks at' : 'reaches'} ${fmt(value, l)}; `
       + `${formatShare(share)} of the picture is ${side} ${fmt(threshold, l)}`
       + `${severity === 'caution' ? ` (caution band; limit ${fmt(l.value, l)})` : ''}`
       + `, tolerance ${formatShare(l.areaTolerance)}`

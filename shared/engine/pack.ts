@@ -1,0 +1,114 @@
+// Level distributions as compact JSON, so that every analysis can keep them and a spec can be
+// judged again later without the pixels. Each distribution keeps only the span between its
+// first and last non-empty bin, as little-endian 32-bit counts in base64: a 1080p frame of
+// camera grain packs to a few kB, a flat test pattern to a few bytes.
+import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP } from './levels'
+import type { LevelDistributions } from './types'
+
+export const LEVEL_KEYS = ['luma', 'compMax', 'compMin', 'rgbMax', 'rgbMin', 'r', 'g', 'b', 'rgbMaxLp', 'rgbMinLp'] as const
+type LevelKey = typeof LEVEL_KEYS[number]
+
+export interface PackedDist { o: number, d: string }
+export interface PackedLevels {
+  v: 1
+  min: number
+  step: number
+  bins: number
+  dists: Partial<Record<LevelKey, PackedDist>>
+}
+
+const B64 = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/'
+const B64_INDEX = (() => {
+  const t = new Int16Array(128).fill(-1)
+  for (let i = 0; i < 64; i++) t[B64.charCodeAt(i)] = i
+  return t
+})()
+
+// Our own base64 rather than Buffer or btoa: the engine runs unchanged in the browser and Node.
+function toBase64(bytes: Uint8Array): string {
+  let out = ''
+  let i = 0
+  for (; i + 2 < bytes.length; i += 3) {
+    const n = (bytes[i]! << 16) | (bytes[i + 1]! << 8) | bytes[i + 2]!
+    out += B64[n >> 18]! + B64[(n >> 12) & 63]! + B64[(n >> 6) & 63]! + B64[n & 63]!
+  }
+  const rest = bytes.length - i
+  if (rest === 1) {
+    const n = bytes[i]! << 16
+    out += `${B64[n >> 18]!}${B64[(n >> 12) & 63]!}==`
+  }
+  else if (rest === 2) {
+    const n = (bytes[i]! << 16) | (bytes[i + 1]! << 8)
+    out += `${B64[n >> 18]!}${B64[(n >> 12) & 63]!}${B64[(n >> 6) & 63]!}=`
+  }
+  return out
+}
+
+function fromBase64(s: string): Uint8Array {
+  if (s.length % 4 !== 0) throw new Error('packed levels: base64 length is not a multiple of 4')
+  const pad = s.endsWith('==') ? 2 : s.endsWith('=') ? 1 : 0
+  const out = new Uint8Array(s.length / 4 * 3 - pad)
+  let o = 0
+  for (let i = 0; i < s.length; i += 4) {
+    let n = 0
+    for (let k = 0; k < 4; k++) {
+      const ch = s.charCodeAt(i + k)
+      const v = ch === 61 ? 0 : ch < 128 ? B64_INDEX[ch]! : -1
+      if (v < 0) throw new Error('packed levels: not base64')
+      n = (n << 6) | v
+    }
+    if (o < out.length) out[o++] = (n >> 16) & 255
+    if (o < out.length) out[o++] = (n >> 8) & 255
+    if (o < out.length) out[o++] = n & 255
+  }
+  return out
+}
+
+export function packDist(dist: Uint32Array): PackedDist {
+  let first = 0
+  while (first < dist.length && dist[first] === 0) first++
+  if (first === dist.length) return { o: 0, d: '' }
+  let last = dist.length - 1
+  while (dist[last] === 0) last--
+  const n = last - first + 1
+  const bytes = new Uint8Array(n * 4)
+  const view = new DataView(bytes.buffer)
+  for (let i = 0; i < n; i++) view.setUint32(i * 4, dist[first + i]!, true)
+  return { o: first, d: toBase64(bytes) }
+}
+
+export function unpackDist(p: PackedDist, bins: number): Uint32Array {
+  const out = new Uint32Array(bins)
+  if (!p.d) return out
+  const bytes = fromBase64(p.d)
+  const n = bytes.length / 4
+  if (!Number.isInteger(n) || p.o < 0 || p.o + n > bins) throw new Error('packed levels: a distribution does not fit its bins')
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength)
+  for (let i = 0; i < n; i++) out[p.o + i] = view.getUint32(i * 4, true)
+  return out
+}
+
+export function packLevels(lv: LevelDistributions): PackedLevels {
+  const dists: PackedLevels['dists'] = {}
+  for (const k of LEVEL_KEYS) {
+    const d = lv[k]
+    if (d) dists[k] = packDist(d)
+  }
+  return { v: 1, min: lv.min, step: lv.step, bins: lv.luma.length, dists }
+}
+
+export function unpackLevels(p: PackedLevels): LevelDistributions {
+  if (p.v !== 1 || p.min !== LEVEL_MIN || p.step !== LEVEL_STEP || p.bins !== LEVEL_BINS) {
+    throw new Error('packed levels: unknown layout')
+  }
+  const get = (k: LevelKey) => {
+    const d = p.dists[k]
+    return d ? unpackDist(d, p.bins) : undefined
+  }
+  const need = (k: LevelKey) => get(k) ?? new Uint32Array(p.bins)
+  return {
+    min: p.min, step: p.step,
+    luma: need('luma'), compMax: need('compMax'), compMin: need('compMin'), rgbMax: need('rgbMax'), rgbMin: need('rgbMin'),
+    r: need('r'), g: need('g'), b: need('b'), rgbMaxLp: get('rgbMaxLp'), rgbMinLp: get('rgbMinLp'),
+  }
+}
