@@ -1,13 +1,14 @@
 // Level distributions as compact JSON, so that every analysis can keep them and a spec can be
 // judged again later without the pixels. Each distribution keeps only the span between its
-// first and last non-empty bin, as little-endian 32-bit counts in base64: a 1080p frame of
-// camera grain packs to a few kB, a flat test pattern to a few bytes.
+// non-empty bins as varints (see packDist): a 1080p frame of camera grain packs to a few kB,
+// a flat test pattern to a few bytes.
 import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP } from './levels'
 import type { LevelDistributions } from './types'
 
 export const LEVEL_KEYS = ['luma', 'compMax', 'compMin', 'rgbMax', 'rgbMin', 'r', 'g', 'b', 'rgbMaxLp', 'rgbMinLp'] as const
 type LevelKey = typeof LEVEL_KEYS[number]
 
+/** `o`: index of the first bin the stream counts from; `d`: the varint stream in base64. */
 export interface PackedDist { o: number, d: string }
 export interface PackedLevels {
   v: 1
@@ -64,27 +65,52 @@ function fromBase64(s: string): Uint8Array {
   return out
 }
 
+/**
+ * Non-empty bins as LEB128 varints, pairs of (bins skipped since the previous non-empty one,
+ * count), in base64: a run of grain costs two or three bytes a bin, a flat test pattern a few
+ * bytes in all.
+ */
 export function packDist(dist: Uint32Array): PackedDist {
-  let first = 0
-  while (first < dist.length && dist[first] === 0) first++
-  if (first === dist.length) return { o: 0, d: '' }
-  let last = dist.length - 1
-  while (dist[last] === 0) last--
-  const n = last - first + 1
-  const bytes = new Uint8Array(n * 4)
-  const view = new DataView(bytes.buffer)
-  for (let i = 0; i < n; i++) view.setUint32(i * 4, dist[first + i]!, true)
-  return { o: first, d: toBase64(bytes) }
+  const bytes: number[] = []
+  const put = (v: number) => {
+    while (v >= 128) { bytes.push((v % 128) | 128); v = Math.floor(v / 128) }
+    bytes.push(v)
+  }
+  let prev = -1
+  for (let i = 0; i < dist.length; i++) {
+    const c = dist[i]!
+    if (c === 0) continue
+    put(i - prev - 1)
+    put(c)
+    prev = i
+  }
+  return { o: 0, d: toBase64(Uint8Array.from(bytes)) }
 }
 
 export function unpackDist(p: PackedDist, bins: number): Uint32Array {
   const out = new Uint32Array(bins)
   if (!p.d) return out
   const bytes = fromBase64(p.d)
-  const n = bytes.length / 4
-  if (!Number.isInteger(n) || p.o < 0 || p.o + n > bins) throw new Error('packed levels: a distribution does not fit its bins')
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength)
-  for (let i = 0; i < n; i++) out[p.o + i] = view.getUint32(i * 4, true)
+  let k = 0
+  const get = () => {
+    let v = 0
+    let mul = 1
+    for (;;) {
+      if (k >= bytes.length) throw new Error('packed levels: a distribution ends inside a number')
+      const b = bytes[k++]!
+      v += (b & 127) * mul
+      if (b < 128) return v
+      mul *= 128
+      if (mul > 2 ** 35) throw new Error('packed levels: a number is too long')
+    }
+  }
+  let i = p.o - 1
+  while (k < bytes.length) {
+    i += get() + 1
+    const c = get()
+    if (i >= bins || c > 0xFFFFFFFF) throw new Error('packed levels: a distribution does not fit its bins')
+    out[i] = c
+  }
   return out
 }
 
