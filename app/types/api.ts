@@ -23,7 +23,7 @@ export interface ReelDetail extends ReelRow {
   teamId: number; productionId: number; role: Role
   production: { id: number; name: string }; spec: SpecRef; counts: ReelCounts
 }
-export interface FrameDecisionInfo { decision: Decision; note: string; decidedBy: { id: number; name: string } | null; decidedAt: string }
+export interface FrameDecisionInfo { decision: Decision; note: string; decidedBy: { id: number; name: string } | null; decidedAt: string; recheck?: boolean }
 export interface FrameListRow {
   id: number; seq: number; name: string; timecode: string | null; format: FrameFormat; width: number; height: number
   status: FrameStatus; failReason: string | null; createdAt: string
@@ -35,3 +35,40 @@ export interface FrameListRow {
 export interface FrameListPage { page: number; pageSize: number; total: number; frames: FrameListRow[] }
 export interface MemberRow { userId: number; name: string; email: string; role: Role; since: string }
 export interface InvitationRow { id: number; email: string; role: Role; expiresAt: string; createdAt: string }
+
+/** GET /api/teams/:teamId/specs */
+export interface SpecListRow {
+  id: number
+  builtin: string | null
+  version: number
+  updatedAt: string
+  spec: import('#shared/engine/specs').DeliverySpec
+  productions: number
+}
+
+/** GET /api/specs/:id */
+export interface SpecDetail {
+  id: number
+  teamId: number
+  builtin: string | null
+  version: number
+  role: Role
+  spec: import('#shared/engine/specs').DeliverySpec
+  versions: Array<{ version: number; body: import('#shared/engine/specs').DeliverySpec; changes: string[]; rejudge: { judged: number; changed: number; text: string; skippedSigned: number } | null; createdAt: string; by: string | null }>
+  productions: Array<{ id: number; name: string }>
+}
+
+/** What re-judging would change (or changed): the answer of a preview or an apply. */
+export interface RejudgeOutcome {
+  preview: boolean
+  judged: number
+  changed: number
+  text: string
+  transitions: Array<{ from: 'pass' | 'caution' | 'fail'; to: 'pass' | 'caution' | 'fail'; count: number }>
+  skippedSigned: number
+  notStored: number
+  version?: number
+  changes?: string[]
+  blocked?: string | null
+  spec?: { id: number; title: string; version: number }
+}

@@ -19,6 +19,8 @@ export interface FrameHistogramsJson {
 
 export type FrameAnalysisView = AnalysisJson & {
   specVersion: number
+  specTitle: string
+  levels: import('../../shared/engine/pack').PackedLevels | null
   analysedAt: string
   durationMs: number
   histograms: FrameHistogramsJson
@@ -46,6 +48,9 @@ export interface FrameDecisionView {
   note: string
   decidedBy: { id: number, name: string } | null
   decidedAt: string
+  /** Set when a re-judge changed the verdict after this decision: to be looked at again. */
+  recheckAt?: string | null
+  recheckNote?: string | null
 }
 
 export interface FrameReelView {

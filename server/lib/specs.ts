@@ -58,6 +58,13 @@ export interface RejudgePlan {
 
 const CHUNK = 2000
 
+// The driver hands json_extract's result over as text or, for a JSON-typed column, already parsed.
+function jsonArray(v: unknown): number[] {
+  const out = typeof v === 'string' ? JSON.parse(v) as unknown : v
+  if (!Array.isArray(out)) throw new Error('stored histogram is not an array')
+  return out as number[]
+}
+
 /**
  * Judges every measured frame of the productions against `spec` from what is stored. Frames of
  * signed-off reels are left alone. Nothing is written.
@@ -69,9 +76,9 @@ export async function planRejudge(db: Pick<Db, 'select'>, teamId: number, produc
   // Only what judging needs: the small result, the Cb/Cr histograms and the packed levels.
   const rows = await db.select({
     id: a.id, frameId: a.frameId, verdict: a.verdict, result: a.result, signed: t.reels.signedAt,
-    bins: sql<string>`json_extract(${a.histograms}, '$.bins')`,
-    cb: sql<string>`json_extract(${a.histograms}, '$.cb')`,
-    cr: sql<string>`json_extract(${a.histograms}, '$.cr')`,
+    bins: sql<unknown>`json_extract(${a.histograms}, '$.bins')`,
+    cb: sql<unknown>`json_extract(${a.histograms}, '$.cb')`,
+    cr: sql<unknown>`json_extract(${a.histograms}, '$.cr')`,
     levels: a.levels,
   }).from(a)
     .innerJoin(t.frames, eq(t.frames.id, a.frameId))
@@ -83,7 +90,7 @@ export async function planRejudge(db: Pick<Db, 'select'>, teamId: number, produc
     const result = r.result as AnalysisJson
     const judged = judgeStored({
       result,
-      histograms: { bins: Number(r.bins), cb: JSON.parse(r.cb) as number[], cr: JSON.parse(r.cr) as number[] },
+      histograms: { bins: Number(r.bins), cb: jsonArray(r.cb), cr: jsonArray(r.cr) },
       levels: r.levels as PackedLevels,
     }, spec)
     const next = { ...result, spec: spec.name, verdict: judged.verdict, reasons: reasonsJson(judged.reasons) }

@@ -1,10 +1,12 @@
 // Delivery specs as the team edits them: unit conversion of a limit, what changed between two
 // versions, and judging a stored analysis again from its level distributions (no pixels).
 import { z } from 'zod'
-import {
-  DeliverySpecSchema, evaluateSpec, fromScale, SCALE_LABELS, toScale, unpackLevels,
-  type DeliverySpec, type LevelScale, type Measured, type PackedLevels, type SpecLimit, type SpecQuantity, type Verdict, type VerdictReason,
-} from '../engine'
+// Engine modules by file, not the index: the browser bundle then holds the verdict, not the measuring kernels.
+import { fromScale, SCALE_LABELS, toScale, type LevelScale } from '../engine/scales'
+import { DeliverySpecSchema, type DeliverySpec, type SpecLimit, type SpecQuantity } from '../engine/specs'
+import { evaluateSpec, type Measured } from '../engine/verdict'
+import { unpackLevels, type PackedLevels } from '../engine/pack'
+import type { Verdict, VerdictReason } from '../engine/types'
 
 export const QUANTITY_LABELS: Record<SpecQuantity, string> = {
   luma: 'Luma (Y\')',

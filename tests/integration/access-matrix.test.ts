@@ -5,12 +5,13 @@ import { join, relative } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { firstId } from '../../server/db/client'
 import * as t from '../../server/db/schema'
+import { builtinSpec } from '../../shared/engine'
 import { CAN, ROLES, type Permission, type Role } from '../../shared/utils/roles'
 import { Client } from '../support/api'
 import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
 import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number }
+type Ctx = { teamId: number; productionId: number; specId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'
   /** The allowed answer may be a 404 about the target's state (checked to carry its own message). */
@@ -57,6 +58,12 @@ const ROUTES: Route[] = [
   { method: 'GET', file: 'reels/[id]/sheet.pdf.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.pdf`, permission: 'downloadSheet' },
   { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.csv`, permission: 'downloadSheet' },
   { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/signoff`, permission: 'signOff' },
+  { method: 'GET', file: 'teams/[teamId]/specs/index.get.ts', path: (c) => `/api/teams/${c.teamId}/specs`, permission: 'view' },
+  { method: 'POST', file: 'teams/[teamId]/specs/index.post.ts', path: (c) => `/api/teams/${c.teamId}/specs`, body: () => ({ spec: { ...builtinSpec('digital-studio')!, name: `matrix-${uid()}`, title: 'Matrix copy' } }), permission: 'manageSpecs' },
+  { method: 'GET', file: 'specs/[id]/index.get.ts', path: (c) => `/api/specs/${c.specId}`, permission: 'view' },
+  // Previews: an allowed role gets what re-judging would change, and nothing is saved.
+  { method: 'POST', file: 'specs/[id]/versions.post.ts', path: (c) => `/api/specs/${c.specId}/versions`, body: () => ({ spec: { ...matrixSpec, title: 'Matrix spec, edited' }, baseVersion: 1, preview: true }), permission: 'manageSpecs' },
+  { method: 'PUT', file: 'productions/[id]/spec.put.ts', path: (c) => `/api/productions/${c.productionId}/spec`, body: (c) => ({ specId: c.specId, preview: true }), permission: 'manageSpecs' },
   { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
 ]
 
@@ -78,6 +85,8 @@ let reelId = 0
 let emptyReelId = 0
 let frameId = 0
 let outsider: Awaited<ReturnType<typeof createUser>>
+let specId = 0
+const matrixSpec = { ...builtinSpec('digital-studio')!, name: 'matrix-spec', title: 'Matrix spec' }
 const clients = new Map<Role | 'outsider', Client>()
 
 beforeAll(async () => {
@@ -87,6 +96,7 @@ beforeAll(async () => {
   for (const role of ROLES) clients.set(role, await new Client().login(team.users[role].email, team.users[role].password))
   clients.set('outsider', await new Client().login(outsider.email, outsider.password))
   const owner = clients.get('owner')!
+  specId = (await owner.post(`/api/teams/${team.teamId}/specs`, { spec: matrixSpec })).body.id
   reelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel' })).body.id
   emptyReelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel without frames' })).body.id
   const up = await owner.uploadFrames(reelId, [{ name: 'matrix.png', bytes: await png8(64, 36, 4242) }])
@@ -106,7 +116,7 @@ async function freshCtx(): Promise<Ctx> {
     teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
   }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
-  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId }
+  return { teamId: team.teamId, productionId: team.productionId, specId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId }
 }
 
 async function call(client: Client, r: Route, c: Ctx) {

@@ -1,5 +1,7 @@
 import { and, asc, desc, eq, gt, lt } from 'drizzle-orm'
+import { builtinSpec } from '../../../../shared/engine/specs'
 import { IdParams } from '../../../../shared/utils/validation'
+import { specForProduction } from '../../../lib/specs'
 
 /**
  * One frame: its record and, once analysed, the analysis with the same field names as
@@ -21,17 +23,27 @@ export default defineEventHandler(async (event) => {
     id: tables.reels.id, name: tables.reels.name, sourceLabel: tables.reels.sourceLabel, sourceRange: tables.reels.sourceRange,
     matrix: tables.reels.matrix, signedAt: tables.reels.signedAt, productionId: tables.productions.id, productionName: tables.productions.name,
   }).from(tables.reels).innerJoin(tables.productions, eq(tables.productions.id, tables.reels.productionId)).where(eq(tables.reels.id, frame.reelId))
+  const current = await specForProduction(db, reel!.productionId)
   const { objectKey: _k, sha256: _s, ...pub } = frame
   return {
     frame: pub,
     role,
     reel,
     neighbours: { prevId: prev?.id ?? null, nextId: next?.id ?? null },
-    decision: d ? { decision: d.decision.decision, note: d.decision.note, decidedBy: d.by?.id ? d.by : null, decidedAt: d.decision.updatedAt } : null,
+    decision: d
+      ? {
+          decision: d.decision.decision, note: d.decision.note, decidedBy: d.by?.id ? d.by : null, decidedAt: d.decision.updatedAt,
+          recheckAt: d.decision.recheckAt, recheckNote: d.decision.recheckNote,
+        }
+      : null,
     analysis: a
       ? {
           ...(a.result as object),
           specVersion: a.specVersion,
+          // The title of a team's own spec is not in the stored result; the production's spec has it when it is the one.
+          specTitle: current.spec.name === a.specName ? current.spec.title : (builtinSpec(a.specName)?.title ?? a.specName),
+          // Packed level distributions: the frame page judges them against another spec in the browser.
+          levels: a.levels,
           analysedAt: a.createdAt,
           durationMs: a.durationMs,
           histograms: a.histograms,
