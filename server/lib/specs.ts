@@ -90,7 +90,8 @@ export async function planRejudge(db: Pick<Db, 'select'>, teamId: number, produc
     const result = r.result as AnalysisJson
     const judged = judgeStored({
       result,
-      histograms: { bins: Number(r.bins), cb: jsonArray(r.cb), cr: jsonArray(r.cr) },
+      // Parsed only if the spec has a Cb or Cr limit (measuredFromStored reads them lazily).
+      histograms: { bins: Number(r.bins), get cb() { return jsonArray(r.cb) }, get cr() { return jsonArray(r.cr) } },
       levels: r.levels as PackedLevels,
     }, spec)
     const next = { ...result, spec: spec.name, verdict: judged.verdict, reasons: reasonsJson(judged.reasons) }

@@ -5,8 +5,12 @@
 import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP } from './levels'
 import type { LevelDistributions } from './types'
 
-export const LEVEL_KEYS = ['luma', 'compMax', 'compMin', 'rgbMax', 'rgbMin', 'r', 'g', 'b', 'rgbMaxLp', 'rgbMinLp'] as const
-type LevelKey = typeof LEVEL_KEYS[number]
+/**
+ * The distributions a verdict reads (verdict.ts). The per-channel R', G', B' ones are not kept:
+ * no limit reads them, and the coarse R, G, B histograms are stored beside the analysis.
+ */
+export const LEVEL_KEYS = ['luma', 'compMax', 'compMin', 'rgbMax', 'rgbMin', 'rgbMaxLp', 'rgbMinLp'] as const
+type LevelKey = typeof LEVEL_KEYS[number] | 'r' | 'g' | 'b'
 
 /** `o`: index of the first bin the stream counts from; `d`: the varint stream in base64. */
 export interface PackedDist { o: number, d: string }
@@ -123,18 +127,26 @@ export function packLevels(lv: LevelDistributions): PackedLevels {
   return { v: 1, min: lv.min, step: lv.step, bins: lv.luma.length, dists }
 }
 
+/**
+ * The distributions back, each decoded on first use: re-judging against a spec decodes only
+ * those its limits read. R', G', B' per channel come back empty (not kept, see LEVEL_KEYS).
+ */
 export function unpackLevels(p: PackedLevels): LevelDistributions {
   if (p.v !== 1 || p.min !== LEVEL_MIN || p.step !== LEVEL_STEP || p.bins !== LEVEL_BINS) {
     throw new Error('packed levels: unknown layout')
   }
-  const get = (k: LevelKey) => {
-    const d = p.dists[k]
-    return d ? unpackDist(d, p.bins) : undefined
+  const cache = new Map<LevelKey, Uint32Array | undefined>()
+  const get = (k: LevelKey, required: boolean): Uint32Array | undefined => {
+    if (!cache.has(k)) {
+      const d = p.dists[k as typeof LEVEL_KEYS[number]]
+      cache.set(k, d ? unpackDist(d, p.bins) : required ? new Uint32Array(p.bins) : undefined)
+    }
+    return cache.get(k)
   }
-  const need = (k: LevelKey) => get(k) ?? new Uint32Array(p.bins)
-  return {
-    min: p.min, step: p.step,
-    luma: need('luma'), compMax: need('compMax'), compMin: need('compMin'), rgbMax: need('rgbMax'), rgbMin: need('rgbMin'),
-    r: need('r'), g: need('g'), b: need('b'), rgbMaxLp: get('rgbMaxLp'), rgbMinLp: get('rgbMinLp'),
+  const out = { min: p.min, step: p.step } as LevelDistributions
+  for (const k of [...LEVEL_KEYS, 'r', 'g', 'b'] as const) {
+    const required = k !== 'rgbMaxLp' && k !== 'rgbMinLp'
+    Object.defineProperty(out, k, { enumerable: true, get: () => get(k, required) })
   }
+  return out
 }

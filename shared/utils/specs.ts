@@ -75,11 +75,16 @@ export function measuredFromStored(s: StoredMeasurement): Measured {
   const lv = unpackLevels(s.levels)
   const h = s.histograms
   const none = new Uint32Array(0)
+  // Cb and Cr are converted only when a limit reads them (most specs judge luma and gamut alone).
+  let cb: Uint32Array | undefined
+  let cr: Uint32Array | undefined
   return {
     width: s.result.width, height: s.result.height,
     luma: s.result.luma, compositeIre: s.result.compositeIre, chroma: s.result.chroma,
     histograms: {
-      bins: h.bins, y: none, cb: Uint32Array.from(h.cb), cr: Uint32Array.from(h.cr),
+      bins: h.bins, y: none,
+      get cb() { return (cb ??= Uint32Array.from(h.cb)) },
+      get cr() { return (cr ??= Uint32Array.from(h.cr)) },
       rgbCoding: 'studio', r: none, g: none, b: none, levels: lv,
     },
   }

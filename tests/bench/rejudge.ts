@@ -38,7 +38,7 @@ interface StoredRow { result: unknown, levels: unknown, bins: string, cb: string
 function judgeRow(row: StoredRow, spec: DeliverySpec) {
   const s: StoredMeasurement = {
     result: row.result as StoredMeasurement['result'],
-    histograms: { bins: Number(row.bins), cb: JSON.parse(row.cb) as number[], cr: JSON.parse(row.cr) as number[] },
+    histograms: { bins: Number(row.bins), get cb() { return JSON.parse(row.cb) as number[] }, get cr() { return JSON.parse(row.cr) as number[] } },
     levels: row.levels as StoredMeasurement['levels'],
   }
   return judgeStored(s, spec).verdict
