@@ -9,7 +9,7 @@ import type { LevelDistributions } from './types'
  * The distributions a verdict reads (verdict.ts). The per-channel R', G', B' ones are not kept:
  * no limit reads them, and the coarse R, G, B histograms are stored beside the analysis.
  */
-export const LEVEL_KEYS = ['luma', 'compMax', 'compMin', 'rgbMax', 'rgbMin', 'rgbMaxLp', 'rgbMinLp'] as const
+export const LEVEL_KEYS = ['luma', 'compMax', 'compMin', 'rgbMax', 'rgbMin', 'rgbMaxLp', 'rgbMinLp', 'lumaMaxR3', 'lumaMinR3', 'compMaxR3', 'compMinR3', 'rgbMaxR3', 'rgbMinR3'] as const
 type LevelKey = typeof LEVEL_KEYS[number] | 'r' | 'g' | 'b'
 
 /** `o`: index of the first bin the stream counts from; `d`: the varint stream in base64. */
@@ -145,7 +145,8 @@ export function unpackLevels(p: PackedLevels): LevelDistributions {
   }
   const out = { min: p.min, step: p.step } as LevelDistributions
   for (const k of [...LEVEL_KEYS, 'r', 'g', 'b'] as const) {
-    const required = k !== 'rgbMaxLp' && k !== 'rgbMinLp'
+    // The spatial ones are absent from analyses stored before they were measured.
+    const required = ['luma', 'compMax', 'compMin', 'rgbMax', 'rgbMin', 'r', 'g', 'b'].includes(k)
     Object.defineProperty(out, k, { enumerable: true, get: () => get(k, required) })
   }
   return out

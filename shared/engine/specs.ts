@@ -27,6 +27,11 @@ export const SpecLimitSchema = z.object({
    * overshoots of sharp edges do not count (EBU R 103 measurement practice). Gamut limits only.
    */
   filter: z.enum(['none', 'lowpass']).optional(),
+  /**
+   * `3x3`: a pixel counts beyond the limit only when the whole 3×3 block around it is beyond, so
+   * a single hot pixel or a thin line is ignored where the client allows. Luma, composite and gamut.
+   */
+  minRegion: z.enum(['pixel', '3x3']).optional(),
 })
 
 export type SpecLimit = z.infer<typeof SpecLimitSchema>
@@ -47,6 +52,12 @@ export const DeliverySpecSchema = z.object({
     }
     if (l.filter === 'lowpass' && l.quantity !== 'rgb') {
       ctx.addIssue({ code: 'custom', path: ['limits', i, 'filter'], message: 'the low-pass filter applies to R\'G\'B\' gamut limits only' })
+    }
+    if (l.minRegion === '3x3' && (l.quantity === 'cb' || l.quantity === 'cr')) {
+      ctx.addIssue({ code: 'custom', path: ['limits', i, 'minRegion'], message: 'a minimum region applies to luma, composite and R\'G\'B\' limits' })
+    }
+    if (l.minRegion === '3x3' && l.filter === 'lowpass') {
+      ctx.addIssue({ code: 'custom', path: ['limits', i, 'minRegion'], message: 'choose either the low-pass filter or a minimum region for one limit, not both' })
     }
     if (!Number.isFinite(l.value) || Math.abs(l.value) > 10000) {
       ctx.addIssue({ code: 'custom', path: ['limits', i, 'value'], message: 'enter a threshold between −10000 and 10000' })

@@ -122,6 +122,16 @@ export interface LevelDistributions {
    */
   rgbMaxLp?: Uint32Array
   rgbMinLp?: Uint32Array
+  /**
+   * 3×3 minimum (for max bounds) and maximum (for min bounds) of luma, the composite envelope
+   * and the R'G'B' extremes: what counts when a limit asks for a region of at least 3×3 pixels.
+   */
+  lumaMaxR3?: Uint32Array
+  lumaMinR3?: Uint32Array
+  compMaxR3?: Uint32Array
+  compMinR3?: Uint32Array
+  rgbMaxR3?: Uint32Array
+  rgbMinR3?: Uint32Array
 }
 
 export interface Histograms {

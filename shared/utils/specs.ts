@@ -49,7 +49,7 @@ export function describeSpecChanges(before: DeliverySpec, after: DeliverySpec): 
   const out: string[] = []
   if (before.title !== after.title) out.push(`title “${before.title}” → “${after.title}”`)
   if (before.description !== after.description) out.push('description edited')
-  const fmt = (l: SpecLimit) => `${l.value} ${UNIT_LABELS[l.unit]}, caution margin ${l.warningMargin}, area tolerance ${+(l.areaTolerance * 100).toFixed(4)} %${l.filter === 'lowpass' ? ', low-pass' : ''}`
+  const fmt = (l: SpecLimit) => `${l.value} ${UNIT_LABELS[l.unit]}, caution margin ${l.warningMargin}, area tolerance ${+(l.areaTolerance * 100).toFixed(4)} %${l.filter === 'lowpass' ? ', low-pass' : ''}${l.minRegion === '3x3' ? ', 3×3 regions' : ''}`
   const old = new Map(before.limits.map((l) => [l.id, l]))
   for (const l of after.limits) {
     const o = old.get(l.id)

@@ -56,3 +56,34 @@ describe('EBU R 103 gamut practice', () => {
     expect(gamutMax(ebu, bars(1.051, run(50, 40)))?.severity).toBe('fail')
   })
 })
+
+describe('minimum region of 3×3 pixels', () => {
+  // Luma white limit at 100 % (code 235, BT.601 Table 3) with zero area tolerance; picture mid grey.
+  const spec = (minRegion?: '3x3'): DeliverySpec => ({
+    name: 'white', title: 'White', description: '',
+    limits: [{ id: 'white', label: 'Luma above 100 %', quantity: 'luma', bound: 'max', value: 100, unit: 'pct', warningMargin: 0, areaTolerance: 0, ...(minRegion ? { minRegion } : {}) }],
+  })
+  /** Mid grey with a square of super-white (R'=G'=B' = 106 %) of `n`×`n` pixels at (50, 5). */
+  function square(n: number): FrameInput {
+    const code = (v: number) => Math.round((16 + 219 * v) * 256)
+    const data = new Uint16Array(W * H * 3).fill(code(0.5))
+    for (let y = 5; y < 5 + n; y++) for (let x = 50; x < 50 + n; x++) data.fill(code(1.06), (y * W + x) * 3, (y * W + x) * 3 + 3)
+    return { kind: 'rgb', data, width: W, height: H, channels: 3, bitDepth: 16, range: 'studio' }
+  }
+  const verdict = (s: DeliverySpec, n: number) => analyseFrame(square(n), { spec: s })
+
+  it('a lone hot pixel fails per pixel, and is ignored when a 3×3 region must be beyond', () => {
+    expect(verdict(spec(), 1).verdict).toBe('fail')
+    expect(verdict(spec('3x3'), 1).verdict).toBe('pass')
+  })
+
+  it('a 2×2 block is just inside (no 3×3 block fits), a 3×3 block just outside: one pixel counts', () => {
+    expect(verdict(spec('3x3'), 2).verdict).toBe('pass')
+    const r = verdict(spec('3x3'), 3).reasons[0]!
+    expect(r.severity).toBe('fail')
+    expect(r.share).toBe(1 / (W * H)) // only the centre pixel's 3×3 block is entirely beyond
+    expect(r.message).toMatch(/3×3-pixel regions/)
+    // A 5×5 block: the 3×3 centres lie inside it, 9 pixels.
+    expect(verdict(spec('3x3'), 5).reasons[0]!.share).toBe(9 / (W * H))
+  })
+})
