@@ -33,11 +33,13 @@ export default defineEventHandler(async (event) => {
     const changes = describeSpecChanges(before, body.spec)
     if (!changes.length) throw createError({ statusCode: 400, statusMessage: 'Nothing changed: this version would equal the current one' })
     const version = current.version + 1
-    const productionIds = await usedBy(tx)
-    // The productions and their reels are locked, so no frame is stored and no reel signed off
+    // A locking read sees the latest committed choice of spec (a plain read would see this
+    // transaction's snapshot and could miss a production switched to this spec meanwhile). The
+    // productions and their reels stay locked, so no frame is stored and no reel signed off
     // between judging and writing.
+    const productionIds = (await tx.select({ id: tables.productions.id }).from(tables.productions)
+      .where(and(eq(tables.productions.teamId, teamId), eq(tables.productions.deliverySpecId, id))).for('update')).map((p) => p.id)
     if (productionIds.length) {
-      await tx.select({ id: tables.productions.id }).from(tables.productions).where(inArray(tables.productions.id, productionIds)).for('update')
       await tx.select({ id: tables.reels.id }).from(tables.reels).where(inArray(tables.reels.productionId, productionIds)).for('update')
     }
     const plan = await planRejudge(tx, teamId, productionIds, body.spec)
