@@ -163,6 +163,8 @@ describe('delivery specs', () => {
     expect(new Set(rows.map((r) => `${r.specName} v${r.specVersion}`))).toEqual(new Set(['ebu-r103-v3 v1']))
     const p = await editor.get(`/api/productions/${productionId}`)
     expect(p.body.spec).toMatchObject({ id: ebu.id, name: 'ebu-r103-v3', version: 1 })
+    const counts = (await editor.get(`/api/teams/${team.teamId}/specs`)).body.specs.map((s: { spec: { name: string }, productions: number }) => [s.spec.name, s.productions])
+    expect(counts).toEqual([['ntsc-setup', 0], ['digital-studio', 0], ['ebu-r103-v3', 1], ['client-studio', 0]])
   })
 
   it('once a reel is signed off the production keeps its spec; a sign-off racing a change sees one or the other whole', async () => {
