@@ -3,7 +3,7 @@
 // analysis row and writes nothing new.
 import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
-import { AnalysisScratch, ENGINE_VERSION, analyseFrame } from '../shared/engine'
+import { AnalysisScratch, ENGINE_VERSION, analyseFrame, evaluateSpec, packLevels } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
 import { analysisJson, histogramsJson } from '../shared/utils/report'
 import type { Db } from '../server/db/client'
@@ -105,7 +105,7 @@ async function measureAndWrite(frame: FrameRow, reel: ReelRow, deps: AnalyseDeps
   const frameId = frame.id
   const started = performance.now()
   const { input } = await decodeStoredFrame(storage, { frame, reel })
-  const { spec, version } = await specForProduction(db, reel.productionId)
+  const { spec, version, id: specId } = await specForProduction(db, reel.productionId)
   // Density buffers are reused from job to job (8 MB per 1080p frame otherwise allocated
   // and collected); one scratch per job in flight, returned once its images are drawn.
   const scratch = scratchPool.pop() ?? new AnalysisScratch()
@@ -119,18 +119,24 @@ async function measureAndWrite(frame: FrameRow, reel: ReelRow, deps: AnalyseDeps
     scratchPool.push(scratch)
   }
   await storeImages(storage, frame, images, encodeFrameLines(input))
-  const json = analysisJson(a, spec.name)
+  const levels = packLevels(a.histograms.levels)
   const histograms = histogramsJson(a.histograms)
   const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
   return db.transaction(async (tx) => {
     // Locked as the settings route locks it: a change lands either before this check or after the write.
     const [now] = await tx.select({ matrix: t.reels.matrix, sourceRange: t.reels.sourceRange }).from(t.reels).where(eq(t.reels.id, reel.id)).for('update')
     if (!now || now.matrix !== reel.matrix || now.sourceRange !== reel.sourceRange) return false
+    // The production's spec may have changed (and its frames been re-judged) while this frame
+    // was measured: lock the production as a re-judge does, and judge against the spec it has now.
+    await tx.select({ id: t.productions.id }).from(t.productions).where(eq(t.productions.id, reel.productionId)).for('update')
+    const current = await specForProduction(tx, reel.productionId)
+    const judged = current.id === specId && current.version === version ? a : { ...a, ...evaluateSpec(a, current.spec) }
+    const json = analysisJson(judged, current.spec.name)
     const row = {
-      frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
+      frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: current.spec.name, specVersion: current.version, verdict: judged.verdict,
       lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
       compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare, matrix: reel.matrix, sourceRange: reel.sourceRange,
-      result: json, histograms, images: FRAME_IMAGE_KINDS.filter((k) => k in images), durationMs: Math.round(performance.now() - started),
+      result: json, histograms, levels, images: FRAME_IMAGE_KINDS.filter((k) => k in images), durationMs: Math.round(performance.now() - started),
     }
     // One row per frame: a racing second run with the same settings writes the same values.
     await tx.insert(t.analyses).values(row).onDuplicateKeyUpdate({ set: { ...row, updatedAt: new Date() } })

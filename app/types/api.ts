@@ -18,3 +18,20 @@ export type PendingInvitation = ApiGet<'/api/teams/:teamId/invitations'>[number]
 export type SheetPage = ApiGet<'/api/reels/:id/sheet'>
 export type ApiTokenRow = ApiGet<'/api/teams/:teamId/tokens'>[number]
 export type ReelSheetState = ReelDetail['sheet']
+export type SpecListRow = ApiGet<'/api/teams/:teamId/specs'>[number]
+export type SpecDetail = ApiGet<'/api/specs/:id'>
+
+/** What re-judging would change (or changed): the answer of a preview or an apply. */
+export interface RejudgeOutcome {
+  preview: boolean
+  judged: number
+  changed: number
+  text: string
+  transitions: Array<{ from: 'pass' | 'caution' | 'fail'; to: 'pass' | 'caution' | 'fail'; count: number }>
+  skippedSigned: number
+  notStored: number
+  version?: number
+  changes?: string[]
+  blocked?: string | null
+  spec?: { id: number; title: string; version: number }
+}

@@ -8,6 +8,7 @@ import { DECISIONS } from '../../shared/utils/decisions'
 import type { DeliverySpec } from '../../shared/engine/specs'
 import type { FrameImageKind } from '../../shared/utils/frame-images'
 import type { AnalysisJson, HistogramsJson } from '../../shared/utils/report'
+import type { PackedLevels } from '../../shared/engine/pack'
 import type { SheetSummary } from '../lib/sheet-rules'
 import { FRAME_RATE_NAMES, type FrameRateName } from '../../shared/utils/timecode'
 
@@ -191,6 +192,8 @@ export const analyses = mysqlTable('analyses', {
   result: json('result').$type<AnalysisJson>().notNull(),
   histograms: json('histograms').$type<HistogramsJson>().notNull(),
   /** The images stored for the frame (served as /api/frames/:id/images/:kind). */
+  /** Packed level distributions (shared/engine/pack.ts): a changed spec is judged again from these. Null before they were kept. */
+  levels: json('levels').$type<PackedLevels>(),
   images: json('images').$type<FrameImageKind[]>().notNull(),
   durationMs: int('duration_ms').notNull(),
   ...timestamps,
@@ -205,6 +208,9 @@ export const decisions = mysqlTable('decisions', {
   decision: mysqlEnum('decision', DECISIONS).notNull(),
   note: varchar('note', { length: 1000 }).notNull().default(''),
   decidedBy: ref('decided_by').references(() => users.id, { onDelete: 'set null' }),
+  /** Set when a re-judge changed the frame's verdict after this decision: kept, but to be looked at again. */
+  recheckAt: datetime('recheck_at', { mode: 'date', fsp: 3 }),
+  recheckNote: varchar('recheck_note', { length: 300 }),
   ...timestamps,
 }, (t) => [uniqueIndex('decisions_frame_uq').on(t.frameId), index('decisions_team_idx').on(t.teamId)])
 
@@ -271,3 +277,19 @@ export const apiTokens = mysqlTable('api_tokens', {
   revokedAt: datetime('revoked_at', { mode: 'date', fsp: 3 }),
   ...timestamps,
 }, (t) => [uniqueIndex('api_tokens_token_uq').on(t.tokenHash), index('api_tokens_team_user_idx').on(t.teamId, t.userId)])
+ * Every saved version of a team's delivery spec, as it was; delivery_specs holds the current one.
+ * Analyses and sign-offs name the version they were judged against.
+ */
+export const deliverySpecVersions = mysqlTable('delivery_spec_versions', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  specId: ref('spec_id').notNull().references(() => deliverySpecs.id, { onDelete: 'cascade' }),
+  version: int('version').notNull(),
+  body: json('body').notNull(),
+  /** What changed from the previous version, in words (shared/utils/specs.ts describeSpecChanges). */
+  changes: json('changes').notNull(),
+  /** What re-judging changed when this version was applied: counts by transition. */
+  rejudge: json('rejudge'),
+  createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
+}, (t) => [uniqueIndex('delivery_spec_versions_uq').on(t.specId, t.version), index('delivery_spec_versions_team_idx').on(t.teamId)])

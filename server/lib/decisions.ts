@@ -17,7 +17,7 @@ export async function recordDecisions(tx: Tx, args: { teamId: number; reelId: nu
   const ready = frames.filter((f) => f.status === 'done' || (f.status === 'failed' && args.decision === 'rejected'))
   for (const f of ready) {
     await tx.insert(t.decisions).values({ frameId: f.id, teamId: args.teamId, decision: args.decision, note: args.note, decidedBy: args.userId })
-      .onDuplicateKeyUpdate({ set: { decision: args.decision, note: args.note, decidedBy: args.userId } })
+      .onDuplicateKeyUpdate({ set: { decision: args.decision, note: args.note, decidedBy: args.userId, recheckAt: null, recheckNote: null } })
     await tx.insert(t.auditLog).values({
       teamId: args.teamId, actorId: args.userId, action: 'frame.decided', subjectType: 'frame', subjectId: f.id,
       details: { decision: args.decision, note: args.note, previous: f.prev ? { decision: f.prev, note: f.prevNote } : null },

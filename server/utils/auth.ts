@@ -71,7 +71,7 @@ export function assertCan(role: Role, permission: Permission) {
   }
 }
 
-type TeamScopedTable = typeof tables.productions | typeof tables.reels | typeof tables.frames
+type TeamScopedTable = typeof tables.productions | typeof tables.reels | typeof tables.frames | typeof tables.deliverySpecs
 
 /**
  * A row of a team-scoped table that the user can reach with the permission, found through

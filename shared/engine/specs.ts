@@ -19,9 +19,19 @@ export const SpecLimitSchema = z.object({
    * Distance inside the limit, in the same unit, where a caution starts: levels between
    * (value − margin) and value for a `max` bound make the frame `caution`, beyond value `fail`.
    */
-  warningMargin: z.number().min(0),
+  warningMargin: z.number().min(0, 'the caution point must lie inside the limit (a margin of 0 or more)'),
   /** Share of the picture (0..1) that may stand beyond the threshold before it counts. */
-  areaTolerance: z.number().min(0).max(1),
+  areaTolerance: z.number().min(0, 'the area tolerance is a share from 0 to 1').max(1, 'the area tolerance is a share from 0 to 1'),
+  /**
+   * `lowpass`: judge R'G'B' after the spatial low-pass filter of lowpass.ts, so that the
+   * overshoots of sharp edges do not count (EBU R 103 measurement practice). Gamut limits only.
+   */
+  filter: z.enum(['none', 'lowpass']).optional(),
+  /**
+   * `3x3`: a pixel counts beyond the limit only when the whole 3×3 block around it is beyond, so
+   * a single hot pixel or a thin line is ignored where the client allows. Luma, composite and gamut.
+   */
+  minRegion: z.enum(['pixel', '3x3']).optional(),
 })
 
 export type SpecLimit = z.infer<typeof SpecLimitSchema>
@@ -39,6 +49,21 @@ export const DeliverySpecSchema = z.object({
     // Cb and Cr have no IRE, mV or percent meaning of their own: only codes are accepted.
     if ((l.quantity === 'cb' || l.quantity === 'cr') && l.unit !== 'code8' && l.unit !== 'code10') {
       ctx.addIssue({ code: 'custom', path: ['limits', i, 'unit'], message: 'Cb and Cr limits are given in 8-bit or 10-bit codes' })
+    }
+    if (l.filter === 'lowpass' && l.quantity !== 'rgb') {
+      ctx.addIssue({ code: 'custom', path: ['limits', i, 'filter'], message: 'the low-pass filter applies to R\'G\'B\' gamut limits only' })
+    }
+    if (l.minRegion === '3x3' && (l.quantity === 'cb' || l.quantity === 'cr')) {
+      ctx.addIssue({ code: 'custom', path: ['limits', i, 'minRegion'], message: 'a minimum region applies to luma, composite and R\'G\'B\' limits' })
+    }
+    if (l.minRegion === '3x3' && l.filter === 'lowpass') {
+      ctx.addIssue({ code: 'custom', path: ['limits', i, 'minRegion'], message: 'choose either the low-pass filter or a minimum region for one limit, not both' })
+    }
+    if (!Number.isFinite(l.value) || Math.abs(l.value) > 10000) {
+      ctx.addIssue({ code: 'custom', path: ['limits', i, 'value'], message: 'enter a threshold between −10000 and 10000' })
+    }
+    if (l.warningMargin > 1000) {
+      ctx.addIssue({ code: 'custom', path: ['limits', i, 'warningMargin'], message: 'the caution margin is at most 1000 in the limit\'s unit' })
     }
   })
 })
@@ -91,13 +116,15 @@ const EBU_TOLERANCE: DeliverySpec = {
     'with excursions tolerated over up to 1 % of the picture area.',
     'Source: EBU R 103 v3.0 (2020), which supersedes the v1 figures (luma −1 %…103 %).',
     'The warning margins put the caution threshold at the v1 luma figures (−1 %, 103 %) and 1 % inside the RGB limits — our choice.',
-    'R 103 applies a low-pass filter before testing; its coefficients are not verified here, so this check runs on unfiltered pixels and is slightly stricter on isolated pixels.',
+    'Measurement practice (R 103 v3.0 Annex 1, from memory): R\'G\'B\' is judged after spatial low-pass filtering, so that the overshoots of sharp edges',
+    'and single-pixel excursions are not counted as gamut errors, and up to 1 % of the picture area may stand outside.',
+    'R 103 does not fix the filter in what we recall: ours is a 3×3 binomial kernel (our choice). Luma is judged unfiltered.',
   ].join(' '),
   limits: [
     { id: 'luma-min', label: 'Luma below −5 %', quantity: 'luma', bound: 'min', value: -5, unit: 'pct', warningMargin: 4, areaTolerance: 0.01 },
     { id: 'luma-max', label: 'Luma above 105 %', quantity: 'luma', bound: 'max', value: 105, unit: 'pct', warningMargin: 2, areaTolerance: 0.01 },
-    { id: 'rgb-min', label: 'R\'G\'B\' below −5 %', quantity: 'rgb', bound: 'min', value: -5, unit: 'pct', warningMargin: 1, areaTolerance: 0.01 },
-    { id: 'rgb-max', label: 'R\'G\'B\' above 105 %', quantity: 'rgb', bound: 'max', value: 105, unit: 'pct', warningMargin: 1, areaTolerance: 0.01 },
+    { id: 'rgb-min', label: 'R\'G\'B\' below −5 %', quantity: 'rgb', bound: 'min', value: -5, unit: 'pct', warningMargin: 1, areaTolerance: 0.01, filter: 'lowpass' },
+    { id: 'rgb-max', label: 'R\'G\'B\' above 105 %', quantity: 'rgb', bound: 'max', value: 105, unit: 'pct', warningMargin: 1, areaTolerance: 0.01, filter: 'lowpass' },
   ],
 }
 

@@ -116,6 +116,22 @@ export interface LevelDistributions {
   r: Uint32Array
   g: Uint32Array
   b: Uint32Array
+  /**
+   * Per-pixel max and min of R', G', B' after the spatial low-pass filter of lowpass.ts (EBU R 103
+   * practice). Absent from analyses stored before it was measured.
+   */
+  rgbMaxLp?: Uint32Array
+  rgbMinLp?: Uint32Array
+  /**
+   * 3×3 minimum (for max bounds) and maximum (for min bounds) of luma, the composite envelope
+   * and the R'G'B' extremes: what counts when a limit asks for a region of at least 3×3 pixels.
+   */
+  lumaMaxR3?: Uint32Array
+  lumaMinR3?: Uint32Array
+  compMaxR3?: Uint32Array
+  compMinR3?: Uint32Array
+  rgbMaxR3?: Uint32Array
+  rgbMinR3?: Uint32Array
 }
 
 export interface Histograms {

@@ -4,7 +4,7 @@ import type { DeliverySpec, SpecLimit } from './specs'
 import type { FrameAnalysis, Verdict, VerdictReason } from './types'
 import { shareAbove, shareBelow } from './levels'
 
-type Measured = Pick<FrameAnalysis, 'width' | 'height' | 'histograms' | 'luma' | 'compositeIre' | 'chroma'>
+export type Measured = Pick<FrameAnalysis, 'width' | 'height' | 'histograms' | 'luma' | 'compositeIre' | 'chroma'>
 
 interface Dist { data: Uint32Array, min: number, step: number }
 
@@ -12,10 +12,17 @@ function distFor(a: Measured, l: SpecLimit): Dist {
   const lv = a.histograms.levels
   const level = (data: Uint32Array): Dist => ({ data, min: lv.min, step: lv.step })
   const coarse = (data: Uint32Array): Dist => ({ data, min: 0, step: 256 / a.histograms.bins })
+  // Spatial distributions are absent from analyses stored before they were measured: those are
+  // judged per pixel, which is stricter.
+  const r3 = l.minRegion === '3x3'
   switch (l.quantity) {
-    case 'luma': return level(lv.luma)
-    case 'composite': return level(l.bound === 'max' ? lv.compMax : lv.compMin)
-    case 'rgb': return level(l.bound === 'max' ? lv.rgbMax : lv.rgbMin)
+    case 'luma': return level((r3 ? (l.bound === 'max' ? lv.lumaMaxR3 : lv.lumaMinR3) : undefined) ?? lv.luma)
+    case 'composite': return level((r3 ? (l.bound === 'max' ? lv.compMaxR3 : lv.compMinR3) : undefined) ?? (l.bound === 'max' ? lv.compMax : lv.compMin))
+    case 'rgb': {
+      const lp = l.filter === 'lowpass' ? (l.bound === 'max' ? lv.rgbMaxLp : lv.rgbMinLp) : undefined
+      const rr = r3 ? (l.bound === 'max' ? lv.rgbMaxR3 : lv.rgbMinR3) : undefined
+      return level(lp ?? rr ?? (l.bound === 'max' ? lv.rgbMax : lv.rgbMin))
+    }
     case 'cb': return coarse(a.histograms.cb)
     case 'cr': return coarse(a.histograms.cr)
   }
@@ -85,7 +92,8 @@ export function evaluateSpec(a: Measured, spec: DeliverySpec): SpecEvaluation {
     const threshold = severity === 'fail' ? l.value : l.value + inward
     const value = fromCode8(extreme(a, l, d), l)
     const side = l.bound === 'max' ? 'above' : 'below'
-    const message = `${l.label}: ${l.bound === 'max' ? 'peaks at' : 'reaches'} ${fmt(value, l)}; `
+    const how = l.filter === 'lowpass' ? ' (after low-pass)' : l.minRegion === '3x3' ? ' (3×3-pixel regions)' : ''
+    const message = `${l.label}${how}: ${l.bound === 'max' ? 'peaks at' : 'reaches'} ${fmt(value, l)}; `
       + `${formatShare(share)} of the picture is ${side} ${fmt(threshold, l)}`
       + `${severity === 'caution' ? ` (caution band; limit ${fmt(l.value, l)})` : ''}`
       + `, tolerance ${formatShare(l.areaTolerance)}`

@@ -19,8 +19,12 @@ export function analysisJson(a: FrameAnalysis, specName: string) {
     shares: round(a.shares, r6),
     spec: specName,
     verdict: a.verdict,
-    reasons: a.reasons.map((r) => ({ ...r, value: r3(r.value), share: r6(r.share) })),
+    reasons: reasonsJson(a.reasons),
   }
+}
+
+export function reasonsJson(reasons: FrameAnalysis['reasons']) {
+  return reasons.map((r) => ({ ...r, value: r3(r.value), share: r6(r.share) }))
 }
 
 export type AnalysisJson = ReturnType<typeof analysisJson>

@@ -28,6 +28,8 @@ export const CAN = {
   /** Undoing a sign-off unlocks a reel the producer may already have sent on: owners only. */
   reopen: ['owner'],
   manageTeam: ['owner'],
+  /** Creating and editing delivery specs and choosing a production's spec re-judges frames: owners only. */
+  manageSpecs: ['owner'],
 } as const satisfies Record<string, readonly Role[]>
 
 export type Permission = keyof typeof CAN

@@ -21,6 +21,8 @@ export const RoleChangeBody = z.object({ role: RoleSchema })
 export const ProductionBody = z.object({
   name: nameField(160, 'Enter a production name'),
   client: z.string().transform(cleanName).pipe(z.string().max(160, 'Use at most 160 characters')).default(''),
+  /** One of the team's delivery specs; the team's first built-in when left out. */
+  specId: z.coerce.number().int().positive().optional(),
 })
 export const TeamParams = z.object({ teamId: IdSchema })
 export const IdParams = z.object({ id: IdSchema })

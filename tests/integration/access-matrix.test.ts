@@ -7,13 +7,14 @@ import { join, relative } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { firstId } from '../../server/db/client'
 import * as t from '../../server/db/schema'
+import { builtinSpec } from '../../shared/engine'
 import { CAN, ROLES, type Permission, type Role } from '../../shared/utils/roles'
 import { Client } from '../support/api'
 import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
 import { linkIn, waitForMail } from '../support/mail'
 import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; tokenId: number; callerRole: Role }
+type Ctx = { teamId: number; productionId: number; specId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; tokenId: number; callerRole: Role }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'
   /** The allowed answer may be a 404 about the target's state (checked to carry its own message). */
@@ -62,6 +63,12 @@ const ROUTES: Route[] = [
   { method: 'GET', file: 'reels/[id]/sheet.pdf.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.pdf`, permission: 'downloadSheet' },
   { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.csv`, permission: 'downloadSheet' },
   { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/signoff`, permission: 'signOff' },
+  { method: 'GET', file: 'teams/[teamId]/specs/index.get.ts', path: (c) => `/api/teams/${c.teamId}/specs`, permission: 'view' },
+  { method: 'POST', file: 'teams/[teamId]/specs/index.post.ts', path: (c) => `/api/teams/${c.teamId}/specs`, body: () => ({ spec: { ...builtinSpec('digital-studio')!, name: `matrix-${uid()}`, title: 'Matrix copy' } }), permission: 'manageSpecs' },
+  { method: 'GET', file: 'specs/[id]/index.get.ts', path: (c) => `/api/specs/${c.specId}`, permission: 'view' },
+  // Previews: an allowed role gets what re-judging would change, and nothing is saved.
+  { method: 'POST', file: 'specs/[id]/versions.post.ts', path: (c) => `/api/specs/${c.specId}/versions`, body: () => ({ spec: { ...matrixSpec, title: 'Matrix spec, edited' }, baseVersion: 1, preview: true }), permission: 'manageSpecs' },
+  { method: 'PUT', file: 'productions/[id]/spec.put.ts', path: (c) => `/api/productions/${c.productionId}/spec`, body: (c) => ({ specId: c.specId, preview: true }), permission: 'manageSpecs' },
   { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
   // Sign out everywhere ends the caller's own sessions: run on a throwaway session of the same person (see call()).
   { method: 'DELETE', file: 'auth/sessions.delete.ts', path: () => '/api/auth/sessions', permission: null, sessionOnly: true },
@@ -103,6 +110,8 @@ async function tokenFor(teamId: number, userId: number, role: Role, extra: Parti
   const id = firstId(await db().insert(t.apiTokens).values({ teamId, userId, name: `matrix ${uid()}`, role, tokenHash: createHash('sha256').update(token).digest('hex'), ...extra }).$returningId())
   return { id, token }
 }
+let specId = 0
+const matrixSpec = { ...builtinSpec('digital-studio')!, name: 'matrix-spec', title: 'Matrix spec' }
 
 beforeAll(async () => {
   team = await createTeamWithRoles()
@@ -119,6 +128,7 @@ beforeAll(async () => {
   for (const e of ENDED) e.client = await e.make()
   removed = await removedMember()
   const owner = clients.get('owner')!
+  specId = (await owner.post(`/api/teams/${team.teamId}/specs`, { spec: matrixSpec })).body.id
   reelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel' })).body.id
   emptyReelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel without frames' })).body.id
   const up = await owner.uploadFrames(reelId, [{ name: 'matrix.png', bytes: await png8(64, 36, 4242) }])
@@ -139,7 +149,7 @@ async function freshCtx(caller?: { id: number }, callerRole: Role = 'owner'): Pr
   }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
   const tokenId = (await tokenFor(team.teamId, caller?.id ?? team.users.owner.id, 'producer')).id
-  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, tokenId, callerRole }
+  return { teamId: team.teamId, productionId: team.productionId, specId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, tokenId, callerRole }
 }
 
 async function call(client: Client, r: Route, c: Ctx, who?: { email: string; password: string }) {

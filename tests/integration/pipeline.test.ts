@@ -62,7 +62,7 @@ describe('upload → analysis', () => {
       const got = frames[i]
       expect(got.frame.status, got.frame.failReason).toBe('done')
       const direct = analysisJson(analyseFrame(await decodeBytes(f.bytes, { range: 'full' }), { matrix: '601', spec }), spec.name)
-      const { specVersion: _v, analysedAt: _a, durationMs: _d, histograms: _h, images, ...api } = got.analysis
+      const { specVersion: _v, specTitle: _t, levels: _l, analysedAt: _a, durationMs: _d, histograms: _h, images, ...api } = got.analysis
       expect(api).toEqual(direct)
       expect(Object.keys(images).sort()).toEqual(['overlay', 'picture', 'thumb', 'vectorscope', 'waveform-flat', 'waveform-luma', 'waveform-rgb'])
     }

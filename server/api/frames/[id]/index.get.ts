@@ -1,7 +1,9 @@
 import { and, asc, desc, eq, gt, isNull, lt, ne } from 'drizzle-orm'
+import { builtinSpec } from '../../../../shared/engine/specs'
 import type { FrameImageKind } from '../../../../shared/utils/frame-images'
 import { IdParams } from '../../../../shared/utils/validation'
 import { decisionHistory } from '../../../lib/decisions'
+import { specForProduction } from '../../../lib/specs'
 
 /**
  * One frame: its record and, once analysed, the analysis with the same field names as
@@ -36,6 +38,7 @@ export default defineEventHandler(async (event) => {
   }).from(tables.reels).innerJoin(tables.productions, eq(tables.productions.id, tables.reels.productionId)).where(eq(tables.reels.id, frame.reelId))
   // The foreign keys keep this row; a miss means the reel went while this request ran.
   if (!reel) throw createError({ statusCode: 404, statusMessage: 'Not found' })
+  const current = await specForProduction(db, reel.productionId)
   const { objectKey: _k, sha256: _s, ...pub } = frame
   return {
     frame: pub,
@@ -43,11 +46,20 @@ export default defineEventHandler(async (event) => {
     reel,
     neighbours: { prevId: prev?.id ?? null, nextId: next?.id ?? null, nextUndecidedId: nextUndecided?.id ?? null },
     history: history.map(({ frameId: _f, ...h }) => h),
-    decision: d ? { decision: d.decision.decision, note: d.decision.note, decidedBy: d.by?.id ? d.by : null, decidedAt: d.decision.updatedAt } : null,
+    decision: d
+      ? {
+          decision: d.decision.decision, note: d.decision.note, decidedBy: d.by?.id ? d.by : null, decidedAt: d.decision.updatedAt,
+          recheckAt: d.decision.recheckAt, recheckNote: d.decision.recheckNote,
+        }
+      : null,
     analysis: a
       ? {
           ...a.result,
           specVersion: a.specVersion,
+          // The title of a team's own spec is not in the stored result; the production's spec has it when it is the one.
+          specTitle: current.spec.name === a.specName ? current.spec.title : (builtinSpec(a.specName)?.title ?? a.specName),
+          // Packed level distributions: the frame page judges them against another spec in the browser.
+          levels: a.levels,
           analysedAt: a.createdAt,
           durationMs: a.durationMs,
           histograms: a.histograms,

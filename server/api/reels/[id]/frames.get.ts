@@ -47,6 +47,7 @@ export default defineEventHandler(async (event) => {
     lumaMeanIre: tables.analyses.lumaMeanIre, compMinIre: tables.analyses.compMinIre, compMaxIre: tables.analyses.compMaxIre,
     outShare: tables.analyses.outShare,
     decision: tables.decisions.decision, decisionNote: tables.decisions.note, decidedAt: tables.decisions.updatedAt,
+    recheckAt: tables.decisions.recheckAt,
     decidedById: tables.users.id, decidedByName: tables.users.name,
   }).from(tables.frames).leftJoin(tables.analyses, eq(tables.analyses.frameId, tables.frames.id))
     .leftJoin(tables.decisions, eq(tables.decisions.frameId, tables.frames.id))
@@ -54,10 +55,10 @@ export default defineEventHandler(async (event) => {
     .where(cond).orderBy(order, asc(tables.frames.seq)).limit(q.pageSize).offset((q.page - 1) * q.pageSize)
   return {
     page: q.page, pageSize: q.pageSize, total: Number(counted?.total ?? 0),
-    frames: rows.map(({ decision, decisionNote, decidedAt, decidedById, decidedByName, ...r }) => ({
+    frames: rows.map(({ decision, decisionNote, decidedAt, recheckAt, decidedById, decidedByName, ...r }) => ({
       ...r,
       thumbUrl: r.status === 'done' ? `/api/frames/${r.id}/images/thumb` : null,
-      decision: decision ? { decision, note: decisionNote, decidedBy: decidedById ? { id: decidedById, name: decidedByName } : null, decidedAt } : null,
+      decision: decision ? { decision, note: decisionNote, decidedBy: decidedById ? { id: decidedById, name: decidedByName } : null, decidedAt, recheck: !!recheckAt } : null,
     })),
   }
 })
