@@ -81,9 +81,11 @@ export function measureBlanking(input: FrameInput, opts: { matrix?: MatrixName }
   // Blanking level: what the raster's outermost samples hold on most lines; it must be at or
   // below black and carry no chroma, else the picture reaches the edge of the digital line.
   outer.sort((a, b) => a - b)
-  const b = outer[Math.floor(outer.length / 2)]!
+  const outerLevel = outer[Math.floor(outer.length / 2)]!
+  const edgeBlank = outerLevel <= 16 + DEPART
+  // Without blanking at the edges, lines are told from digital blanking (Y 16, Cb Cr 128; BT.601).
+  const b = edgeBlank ? outerLevel : 16
   const blank = (r: number, x: number) => Math.abs(ys[r]![x]! - b) <= DEPART && cs[r]![x]! <= DEPART
-  const edgeBlank = b <= 16 + DEPART
   res.blankingLevelCode8 = edgeBlank ? b : null
 
   let first = -1; let last = -1

@@ -5,7 +5,7 @@ import type { BarsResult, BarsTolerances } from './bars'
 export interface MatchReason { check: 'level' | 'gain' | 'chroma' | 'hue', value: number, tolerance: number, unit: string, message: string }
 
 export interface MatchResult {
-  /** Black level of the source minus the reference's (IRE). */
+  /** Black level of the source minus the reference's (IRE, 92.5 IRE per 219 codes). */
   levelOffsetIre: number
   /** Luma gain of the source over the reference's (1 = equal). */
   gainRatio: number
@@ -19,14 +19,16 @@ export interface MatchResult {
   summary: string
 }
 
-type BarsFigures = Pick<BarsResult, 'recognised' | 'blackIre' | 'lumaGainPct' | 'chromaGainPct' | 'hueErrorDeg'>
+type BarsFigures = Pick<BarsResult, 'recognised' | 'blackCode8' | 'lumaGainPct' | 'chromaGainPct' | 'hueErrorDeg'>
 
 const signed = (v: number, d: number) => `${v >= 0 ? '+' : '−'}${Math.abs(v).toFixed(d)}`
 
 /** Null when either frame was not recognised as bars. */
 export function matchBars(reference: BarsFigures, source: BarsFigures, tol: BarsTolerances): MatchResult | null {
   if (!reference.recognised || !source.recognised) return null
-  const levelOffsetIre = source.blackIre! - reference.blackIre!
+  // Black levels compared as codes, on the setup scale's 92.5 IRE per 219 codes, so sources read on
+  // different scales (one carrying setup in its codes) still compare.
+  const levelOffsetIre = (source.blackCode8! - reference.blackCode8!) * 92.5 / 219
   const gainRatio = source.lumaGainPct! / reference.lumaGainPct!
   const chromaGainPct = 100 * (source.chromaGainPct! / reference.chromaGainPct! - 1)
   const hueOffsetDeg = ((source.hueErrorDeg! - reference.hueErrorDeg! + 540) % 360) - 180
