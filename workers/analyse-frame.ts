@@ -3,9 +3,11 @@
 // analysis row and writes nothing new.
 import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
-import { AnalysisScratch, ENGINE_VERSION, analyseFrame } from '../shared/engine'
+import { AnalysisScratch, ENGINE_VERSION, analyseFrame, barsTolerancesFor } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
 import { analysisJson } from '../shared/utils/report'
+import { measureLineup, withLineup } from '../shared/utils/lineup'
+import { matchAgainst, referenceFor } from '../server/lib/lineup'
 import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
 import { specForProduction } from '../server/lib/specs'
@@ -73,7 +75,8 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     }
     await Promise.all(Object.entries(images).map(([kind, img]) =>
       storage.put(keys.image(frame.teamId, frame.id, kind), img.data, img.contentType)))
-    const json = analysisJson(a, spec.name)
+    // Bars check and blanking estimate beside the level analysis; their findings join its verdict.
+    const lineup = withLineup(analysisJson(a, spec.name), measureLineup(input, { matrix: reel.matrix, spec }))
     const h = a.histograms
     const histograms = {
       bins: h.bins, rgbCoding: h.rgbCoding,
@@ -81,9 +84,12 @@ export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{
     }
     const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)
     await db.transaction(async (tx) => {
+      // Matched against the production's reference as it stands, read under lock so that a
+      // reference changed meanwhile re-matches this frame after, never before, it is stored.
+      const json = matchAgainst(lineup, frameId, await referenceFor(tx, reel.productionId, true), barsTolerancesFor(spec))
       // The unique key on frame_id turns a racing second run into a no-op.
       await tx.insert(t.analyses).values({
-        frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: a.verdict,
+        frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: spec.name, specVersion: version, verdict: json.verdict,
         lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
         compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare,
         result: json, histograms, images: Object.keys(images), durationMs: Math.round(performance.now() - started),

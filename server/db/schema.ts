@@ -240,3 +240,16 @@ export const signoffs = mysqlTable('signoffs', {
   reopenReason: varchar('reopen_reason', { length: 1000 }),
   ...timestamps,
 }, (t) => [index('signoffs_reel_idx').on(t.reelId, t.signedAt), index('signoffs_team_idx').on(t.teamId)])
+
+/**
+ * The production's reference source for matching: one bars frame the other sources' bars are
+ * compared with (level offset, gain ratio, chroma gain, hue offset). One per production.
+ */
+export const barsReferences = mysqlTable('bars_references', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  productionId: ref('production_id').notNull().references(() => productions.id, { onDelete: 'cascade' }),
+  frameId: ref('frame_id').notNull().references(() => frames.id, { onDelete: 'cascade' }),
+  setBy: ref('set_by').references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('bars_references_production_uq').on(t.productionId), index('bars_references_frame_idx').on(t.frameId)])

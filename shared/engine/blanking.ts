@@ -69,22 +69,23 @@ export function measureBlanking(input: FrameInput, opts: { matrix?: MatrixName }
   const W = src.width; const H = src.height
   const buf = makeRowBuffers(W)
   const ys: Float64Array[] = []; const cs: Float64Array[] = []
-  const outer: number[] = []
+  const outerL: number[] = []; const outerR: number[] = []
   for (let r = 0; r < H; r++) {
     src.readRow(r, buf)
     const y = Float64Array.from(buf.y)
     const c = new Float64Array(W)
     for (let x = 0; x < W; x++) c[x] = 224 * Math.max(Math.abs(buf.pb[x]!), Math.abs(buf.pr[x]!))
     ys.push(y); cs.push(c)
-    outer.push(y[0]!, y[W - 1]!)
+    outerL.push(y[0]!); outerR.push(y[W - 1]!)
   }
-  // Blanking level: what the raster's outermost samples hold on most lines; it must be at or
-  // below black and carry no chroma, else the picture reaches the edge of the digital line.
-  outer.sort((a, b) => a - b)
-  const outerLevel = outer[Math.floor(outer.length / 2)]!
-  const edgeBlank = outerLevel <= 16 + DEPART
+  // Blanking level: what the raster's outermost samples hold on most lines, on each side; it must
+  // be at or below black, else the picture reaches that end of the digital line.
+  const med = (a: number[]) => a.sort((p, q) => p - q)[Math.floor(a.length / 2)]!
+  const mL = med(outerL); const mR = med(outerR)
+  const blankL = mL <= 16 + DEPART; const blankR = mR <= 16 + DEPART
+  const edgeBlank = blankL || blankR
   // Without blanking at the edges, lines are told from digital blanking (Y 16, Cb Cr 128; BT.601).
-  const b = edgeBlank ? outerLevel : 16
+  const b = blankL ? mL : blankR ? mR : 16
   const blank = (r: number, x: number) => Math.abs(ys[r]![x]! - b) <= DEPART && cs[r]![x]! <= DEPART
   res.blankingLevelCode8 = edgeBlank ? b : null
 
@@ -122,9 +123,8 @@ export function measureBlanking(input: FrameInput, opts: { matrix?: MatrixName }
   const right = rights[Math.floor(0.25 * (rights.length - 1))]!
   res.left = left
   res.right = right
-  res.leftHidden = !edgeBlank || left < 0.5
-  res.rightHidden = !edgeBlank || right > W - 0.5
-  if (!edgeBlank) notes.push('the outermost samples carry picture, not blanking: the active picture is at least as wide as the digital line')
+  res.leftHidden = !blankL || left < 0.5
+  res.rightHidden = !blankR || right > W - 0.5
   res.activeUs = samplesToUs(right - left)
   res.hBlankingUs = NTSC_LINE_US - res.activeUs
   res.hBlankingExact = !res.leftHidden && !res.rightHidden
@@ -133,7 +133,11 @@ export function measureBlanking(input: FrameInput, opts: { matrix?: MatrixName }
   }
 
   const h = res.hBlankingUs
-  if (res.hBlankingExact && (h < H_BLANKING_MIN_US || h > H_BLANKING_MAX_US)) {
+  if (res.leftHidden && res.rightHidden) {
+    // A picture made digitally fills the 720-sample line; nothing about the blanking can be told.
+    res.notes.push('no blanking is seen on either side (a picture made digitally fills the 720-sample line), so the horizontal blanking is not judged')
+  }
+  else if (res.hBlankingExact && (h < H_BLANKING_MIN_US || h > H_BLANKING_MAX_US)) {
     res.reasons.push({ check: 'h-blanking', value: h, unit: 'µs', message: `Horizontal blanking ${h.toFixed(2)} µs, outside ${H_BLANKING_MIN_US}–${H_BLANKING_MAX_US} µs (${h > H_BLANKING_MAX_US ? 'picture too narrow' : 'picture too wide'})` })
   }
   else if (!res.hBlankingExact && h < H_BLANKING_MIN_US) {

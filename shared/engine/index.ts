@@ -1,7 +1,7 @@
 // Linewise measurement engine: plain TypeScript shared by the worker, the server and the browser.
 
 /** Bumped whenever a measured number could change; recorded beside every stored analysis. */
-export const ENGINE_VERSION = '1.1.0'
+export const ENGINE_VERSION = '1.2.0'
 
 export * from './types'
 export * from './matrix'

@@ -2,6 +2,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine'
 import { analysisJson, lineJson } from '../../shared/utils/report'
+import { measureLineup, withLineup } from '../../shared/utils/lineup'
 import { linePlot } from '../../shared/engine'
 import { decodeBytes } from '../../workers/lib/decode-file'
 import { Client } from '../support/api'
@@ -55,7 +56,8 @@ describe('upload → analysis', () => {
     for (const [i, f] of files.entries()) {
       const got = frames[i]
       expect(got.frame.status, got.frame.failReason).toBe('done')
-      const direct = analysisJson(analyseFrame(await decodeBytes(f.bytes, { range: 'full' }), { matrix: '601', spec }), spec.name)
+      const input = await decodeBytes(f.bytes, { range: 'full' })
+      const direct = withLineup(analysisJson(analyseFrame(input, { matrix: '601', spec }), spec.name), measureLineup(input, { matrix: '601', spec }))
       const { specVersion: _v, analysedAt: _a, durationMs: _d, histograms: _h, images, ...api } = got.analysis
       expect(api).toEqual(direct)
       expect(Object.keys(images).sort()).toEqual(['overlay', 'picture', 'thumb', 'vectorscope', 'waveform-flat', 'waveform-luma', 'waveform-rgb'])

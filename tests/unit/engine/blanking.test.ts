@@ -20,14 +20,20 @@ describe('µs ↔ samples at 13.5 MHz (BT.601)', () => {
   })
 })
 
+// Where the analogue picture sits in the digital line (SMPTE 170M and BT.601 timing, memory):
+// 0H lies 16 samples after the last of the 720 active samples, and the front porch puts the end
+// of the picture 1.5 µs before 0H, so the picture ends at 720 + 16 − 1.5·13.5 = 715.75 samples
+// and starts (63.556 − H blanking)·13.5 samples before that.
+const PICTURE_END = 720 + 16 - usToSamples(1.5)
+
 /**
- * A raster with the active picture `hUs` of blanking wide, centred, and `top`/`bottom` blank rows;
+ * A raster with `hUs` of horizontal blanking placed as above, and `top`/`bottom` blank rows;
  * the picture's edge samples carry the share of the sample the picture covers.
  */
-function raster(hUs: number, height: number, top: number, bottom: number, kind: 'uyvy' | 'v210' = 'uyvy'): FrameInput {
+function raster(hUs: number, height: number, top: number, bottom: number, kind: 'uyvy' | 'v210' = 'uyvy', edges?: [number, number]): FrameInput {
   const W = 720
   const active = usToSamples(NTSC_LINE_US - hUs)
-  const left = (W - active) / 2; const right = left + active
+  const [left, right] = edges ?? [PICTURE_END - active, PICTURE_END]
   const yLine = new Float64Array(W)
   for (let x = 0; x < W; x++) {
     const cover = Math.max(0, Math.min(x + 1, right) - Math.max(x, left))
@@ -64,8 +70,10 @@ describe('blanking of synthetic SD rasters with known edges', () => {
       expect(r.vBlankingLinesPerField).toBe(24)
       expect(r.verdict).toBe('fail')
       expect(r.reasons.map(x => x.check)).toEqual(['v-blanking'])
-      // Edges per line, in samples: the picture starts at (720 − 710.85)/2 = 4.57 (computed).
-      expect(r.leftEdges[100]).toBeCloseTo(4.57, 1)
+      // Edges per line, in samples: the picture starts at 715.75 − 710.85 = 4.90 (computed).
+      expect(PICTURE_END).toBeCloseTo(715.75, 6)
+      expect(r.leftEdges[100]).toBeCloseTo(4.9, 1)
+      expect(r.rightEdges[100]).toBeCloseTo(715.75, 1)
       expect(r.leftEdges[0]).toBeNull()
     }
   })
@@ -84,14 +92,23 @@ describe('blanking of synthetic SD rasters with known edges', () => {
     expect(r.verdict).toBe('pass')
   })
 
-  it('9.8 µs: the picture (725.7 samples) overfills the 720-sample line, so the width is an upper bound and fails', () => {
-    // 63.556 − 9.8 = 53.756 µs = 725.7 samples > 720: no blanking is left to see on either side;
-    // the most a 720-sample raster can show is 63.556 − 53.333 = 10.22 µs (computed).
+  it('9.8 µs: the picture starts before the digital line does, so the width is an upper bound, and fails', () => {
+    // 63.556 − 9.8 = 53.756 µs = 725.7 samples, ending at 715.75: it would start at −9.96, before
+    // sample 0. What is seen is 715.75 samples = 53.02 µs of picture, so H blanking ≤ 10.54 µs (computed).
     const r = measureBlanking(raster(9.8, 486, 0, 0))
+    expect(r.leftHidden).toBe(true)
     expect(r.hBlankingExact).toBe(false)
-    expect(r.hBlankingUs).toBeCloseTo(10.22, 2)
+    expect(r.hBlankingUs).toBeCloseTo(NTSC_LINE_US - 715.75 / 13.5, 1)
     expect(r.verdict).toBe('fail')
-    expect(r.reasons[0]!.message).toMatch(/at most 10\.22 µs.*too wide/)
+    expect(r.reasons[0]!.message).toMatch(/at most 10\.5\d µs.*too wide/)
+  })
+
+  it('a picture made digitally (no blanking on either side) is not judged on H blanking', () => {
+    const r = measureBlanking(raster(0, 486, 0, 0, 'uyvy', [0, 720]))
+    expect(r.leftHidden && r.rightHidden).toBe(true)
+    expect(r.verdict).toBe('unknown')
+    expect(r.reasons).toEqual([])
+    expect(r.vBlankingLinesPerField).toBe(19.5)
   })
 
   it('frames that are not full-raster SD are not estimated', () => {
