@@ -1,5 +1,6 @@
 // Shapes of the frame routes' JSON (dates arrive as ISO strings), for the frame and compare pages.
 import type { AnalysisJson } from '../../shared/utils/report'
+import type { BarsJson, BlankingJson, MatchJson } from '../../shared/utils/lineup'
 import type { Decision } from '../../shared/utils/decisions'
 import type { Role } from '../../shared/utils/roles'
 import type { FrameFormat, FrameStatus } from '../../shared/utils/uploads'
@@ -23,6 +24,10 @@ export type FrameAnalysisView = AnalysisJson & {
   durationMs: number
   histograms: FrameHistogramsJson
   images: Partial<Record<FrameImageKind, string>>
+  /** Line-up checks; absent on analyses stored before engine 1.2.0. */
+  bars?: BarsJson
+  blanking?: BlankingJson
+  match?: MatchJson | null
 }
 
 export interface FrameRecord {

@@ -57,6 +57,10 @@ const ROUTES: Route[] = [
   { method: 'GET', file: 'reels/[id]/sheet.pdf.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.pdf`, permission: 'downloadSheet' },
   { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.csv`, permission: 'downloadSheet' },
   { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/signoff`, permission: 'signOff' },
+  { method: 'GET', file: 'productions/[id]/matching.get.ts', path: (c) => `/api/productions/${c.productionId}/matching`, permission: 'view' },
+  // The matrix frame is a picture, not bars: an allowed role gets 422 "not recognised as colour bars".
+  { method: 'PUT', file: 'productions/[id]/reference.put.ts', path: (c) => `/api/productions/${c.productionId}/reference`, body: (c) => ({ frameId: c.frameId }), permission: 'decide' },
+  { method: 'DELETE', file: 'productions/[id]/reference.delete.ts', path: (c) => `/api/productions/${c.productionId}/reference`, permission: 'decide' },
   { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
 ]
 
