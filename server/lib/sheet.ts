@@ -5,6 +5,8 @@ import { and, asc, desc, eq, isNull } from 'drizzle-orm'
 import type { Db } from '../db/client'
 import * as t from '../db/schema'
 import type { AnalysisJson } from '../../shared/utils/report'
+import { lineupLines } from '../../shared/utils/lineup'
+import type { LineupAnalysisJson } from '../../shared/utils/lineup'
 import type { SheetReason, SheetRow } from './sheet-rules'
 
 type Tx = Parameters<Parameters<Db['transaction']>[0]>[0]
@@ -36,6 +38,7 @@ export async function loadSheetRows(db: Db | Tx, reelId: number): Promise<SheetR
     verdict: r.status === 'done' ? r.verdict : null,
     note: r.note ?? '',
     reasons: ((result as AnalysisJson | null)?.reasons ?? []).map((x): SheetReason => ({ limit: x.limit, message: x.message, severity: x.severity })),
+    lineup: r.status === 'done' ? lineupLines(result as LineupAnalysisJson | null) : [],
   }))
 }
 

@@ -90,3 +90,20 @@ export function applyMatch(json: LineupAnalysisJson, reference: { bars: BarsJson
   const base = { ...json, reasons: json.reasons.filter(r => !r.limit.startsWith('match-')) }
   return withLineup(base, { bars: json.bars, blanking: json.blanking, match })
 }
+
+/** The line-up checks of one stored analysis in a few lines of text, for the pass/fail sheet. */
+export function lineupLines(json: Partial<LineupAnalysisJson> | null | undefined): string[] {
+  const out: string[] = []
+  const b = json?.bars
+  const sg = (v: number, d: number) => `${v >= 0 ? '+' : '−'}${Math.abs(v).toFixed(d)}`
+  if (b?.recognised) {
+    out.push(`Bars check: ${b.label} — black ${b.blackIre!.toFixed(2)} IRE (offset ${sg(b.blackOffsetIre!, 2)}), setup ${b.setup}, luma gain ${b.lumaGainPct!.toFixed(1)} %, chroma gain ${b.chromaGainPct!.toFixed(1)} %, hue ${sg(b.hueErrorDeg!, 1)}°${b.pluge ? `, PLUGE ${b.pluge.map(p => sg(p.relativeIre, 1)).join('/')} IRE` : ''}: ${b.verdict!.toUpperCase()} (tolerances common practice)`)
+  }
+  const m = json?.match
+  if (m) out.push(`Source match against ${m.reference.reelName} / ${m.reference.frameName}: ${m.summary}: ${m.verdict.toUpperCase()}`)
+  const k = json?.blanking
+  if (k?.applicable && k.hBlankingUs !== null) {
+    out.push(`Blanking: H ${k.hBlankingExact ? '' : 'at most '}${k.hBlankingUs.toFixed(2)} µs, V ${k.vBlankingLinesPerField} lines a field: ${k.verdict === 'unknown' ? 'H not judged' : k.verdict!.toUpperCase()} (SMPTE 170M, memory)`)
+  }
+  return out
+}
