@@ -337,7 +337,7 @@ export function measureBars(input: FrameInput, opts: { matrix?: MatrixName, spec
   if (firstRow > 0.03 * H) notes.push(`the bars start at row ${firstRow}, not at the top of the picture`)
 
   let pattern: BarsPattern | null = null
-  if (family === 'sd8' || (family === 'sd' && topEnd > 0.95)) pattern = 'sd-75-full' // amplitude settled below
+  if ((family === 'sd8' || family === 'sd') && topEnd > 0.95) pattern = 'sd-75-full' // amplitude settled below
   else if (family === 'sd' && topEnd > 0.62 && topEnd < 0.71) pattern = 'sd-75-split'
   else if (family === 'hd' && topEnd > 0.53 && topEnd < 0.62) pattern = 'hd-rp219'
   if (!pattern) {
