@@ -105,7 +105,7 @@ describe('bars check and source matching through the API', () => {
 
   it('a frame analysed after the reference was named is matched by the worker', async () => {
     const up = await editor.uploadFrames(ids.c!.reelId, [{ name: 'bars_c2.v210', bytes: bars({ hueDeg: -3 }) }], '?raw=v210&width=720&height=486')
-    const f = await frame(up.body.files[0].frameId)
+    const f = await frame(up.body.files[0]!.frameId!)
     expect(f.analysis.match.reference.frameId).toBe(ids.a!.frameId)
     expect(f.analysis.match.hueOffsetDeg).toBeCloseTo(-3, 0)
   })
