@@ -31,8 +31,8 @@ async function reelWith(name: string, file: { name: string, bytes: Uint8Array },
   const reel = await editor.post(`/api/productions/${team.productionId}/reels`, { name, sourceLabel: name })
   expect(reel.status).toBe(201)
   const up = await editor.uploadFrames(reel.body.id, [file], query)
-  expect(up.body.files[0].ok, JSON.stringify(up.body)).toBe(true)
-  return { reelId: reel.body.id as number, frameId: up.body.files[0].frameId as number }
+  expect(up.body.files[0]!.ok, JSON.stringify(up.body)).toBe(true)
+  return { reelId: reel.body.id as number, frameId: up.body.files[0]!.frameId as number }
 }
 
 async function frame(id: number) {

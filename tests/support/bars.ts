@@ -199,9 +199,9 @@ export function uyvyFrame(patches: Patch[], width: number, height: number): Fram
   return { kind: 'uyvy', data: toUyvy(paint(patches, width, height, 8), width, height), width, height }
 }
 
-export function v210Frame(patches: Patch[], width: number, height: number): FrameInput {
+export function v210Frame(patches: Patch[], width: number, height: number): FrameInput & { kind: 'v210' } {
   const p = paint(patches, width, height, 10)
-  return { kind: 'v210', data: packV210(p.y, p.cb, p.cr, width, height), width, height }
+  return { kind: 'v210' as const, data: packV210(p.y, p.cb, p.cr, width, height), width, height }
 }
 
 /** R'G'B' 8-bit full range (0..255 = black..white), each patch from its exact Y'PbPr. */
