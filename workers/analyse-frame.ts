@@ -3,9 +3,11 @@
 // analysis row and writes nothing new.
 import { and, eq, ne } from 'drizzle-orm'
 import { UnrecoverableError } from 'bullmq'
-import { AnalysisScratch, ENGINE_VERSION, analyseFrame, evaluateSpec, packLevels } from '../shared/engine'
+import { AnalysisScratch, ENGINE_VERSION, analyseFrame, barsTolerancesFor, evaluateSpec, packLevels } from '../shared/engine'
 import type { AnalyseJob } from '../shared/utils/queues'
 import { analysisJson, histogramsJson } from '../shared/utils/report'
+import { measureLineup, withLineup } from '../shared/utils/lineup'
+import { matchAgainst, referenceFor } from '../server/lib/lineup'
 import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
 import { DecodeFileError } from '../server/lib/decode-file'
@@ -131,9 +133,13 @@ async function measureAndWrite(frame: FrameRow, reel: ReelRow, deps: AnalyseDeps
     await tx.select({ id: t.productions.id }).from(t.productions).where(eq(t.productions.id, reel.productionId)).for('update')
     const current = await specForProduction(tx, reel.productionId)
     const judged = current.id === specId && current.version === version ? a : { ...a, ...evaluateSpec(a, current.spec) }
-    const json = analysisJson(judged, current.spec.name)
+    // Bars check and blanking estimate beside the level analysis; their findings join its verdict.
+    // Matched against the production's reference as it stands, read under lock so that a
+    // reference changed meanwhile re-matches this frame after, never before, it is stored.
+    const lineup = withLineup(analysisJson(judged, current.spec.name), measureLineup(input, { matrix: reel.matrix, spec: current.spec }))
+    const json = matchAgainst(lineup, frameId, await referenceFor(tx, reel.productionId, true), barsTolerancesFor(current.spec))
     const row = {
-      frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: current.spec.name, specVersion: current.version, verdict: judged.verdict,
+      frameId, teamId: frame.teamId, engineVersion: ENGINE_VERSION, specName: current.spec.name, specVersion: current.version, verdict: json.verdict,
       lumaMinIre: a.lumaIre.min, lumaMaxIre: a.lumaIre.max, lumaMeanIre: a.lumaIre.mean,
       compMinIre: a.compositeIre.min, compMaxIre: a.compositeIre.max, outShare, matrix: reel.matrix, sourceRange: reel.sourceRange,
       result: json, histograms, levels, images: FRAME_IMAGE_KINDS.filter((k) => k in images), durationMs: Math.round(performance.now() - started),

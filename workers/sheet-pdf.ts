@@ -96,6 +96,7 @@ export async function renderSheetPdf(input: SheetInput): Promise<Buffer> {
   await coverPage(doc, input, left, width)
   specSection(doc, input, left, width, bottom)
   await framesTable(doc, input, left, width, bottom)
+  lineupSection(doc, input, left, width, bottom)
   await scopePages(doc, input)
   footers(doc, input)
   doc.end()
@@ -294,6 +295,25 @@ async function framesTable(doc: Doc, input: SheetInput, left: number, width: num
   doc.y = y + 6
   if (doc.y + 20 > bottom()) doc.addPage()
   doc.font('regular').fontSize(8).fillColor(MUTED).text('Luma min/max and composite max in IRE (7.5 setup). Out of range: the largest share of the picture below black, above white, beyond the composite limits or outside the RGB gamut.', left, doc.y, { width })
+}
+
+/** Bars check, source match and blanking of every frame that has them. */
+function lineupSection(doc: Doc, input: SheetInput, left: number, width: number, bottom: () => number) {
+  const rows = input.rows.filter((r) => r.lineup?.length)
+  if (!rows.length) return
+  doc.addPage()
+  heading(doc, `Line-up checks (${rows.length})`, left, width)
+  for (const r of rows) {
+    const text = r.lineup!.join('\n')
+    const h = doc.font('regular').fontSize(8.5).heightOfString(text, { width: width - 90 }) + 8
+    if (doc.y + h > bottom()) doc.addPage()
+    const y = doc.y
+    doc.font('mono').fontSize(8.5).fillColor(INK).text(`#${r.seq}`, left, y, { width: 80 })
+    doc.font('regular').fontSize(8.5).fillColor(INK).text(text, left + 90, y, { width: width - 90 })
+    doc.y = Math.max(doc.y, y + h)
+  }
+  doc.moveDown(0.5)
+  doc.font('regular').fontSize(8).fillColor(MUTED).text('Bars read against SMPTE EG 1 / ITU-R BT.801 (SD) and SMPTE RP 219 (HD) tables; bars and matching tolerances are common practice, not a standard; blanking judged against SMPTE 170M as recalled (10.7–11.1 µs, at most 21 lines a field). These figures are an aid: the broadcaster’s own QC and spec take precedence.', left, doc.y, { width })
 }
 
 /**

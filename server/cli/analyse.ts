@@ -1,20 +1,23 @@
 // Command line: measure one frame grab and print a summary or JSON.
 // npm run --silent analyse -- FILE [--range full|studio] [--matrix 601|709]
-//   [--raw uyvy|v210 --width W --height H] [--spec NAME] [--line N] [--json]
+//   [--raw uyvy|v210 --width W --height H] [--spec NAME] [--line N] [--reference FILE] [--json]
 import { parseArgs } from 'node:util'
 import {
-  analyseFrame, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, EngineInputError, formatShare,
+  analyseFrame, barsTolerancesFor, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, ENGINE_VERSION, EngineInputError, formatShare,
   LEVEL_SCALES, linePlot, MV_CONVENTION, SCALE_SHORT, toScale,
 } from '../../shared/engine/index'
-import type { FrameAnalysis, LinePlot, MatrixName, SourceRange } from '../../shared/engine/index'
+import type { FrameAnalysis, LevelScale, LinePlot, MatrixName, SourceRange } from '../../shared/engine/index'
 import { analysisJson, lineJson } from '../../shared/utils/report'
+import { applyMatch, measureLineup, withLineup } from '../../shared/utils/lineup'
+import type { LineupAnalysisJson } from '../../shared/utils/lineup'
 import { decodeFile, DecodeFileError } from '../lib/decode-file'
 import type { RawKind } from '../lib/decode-file'
 
 class UsageError extends Error {}
 
 const USAGE = `usage: analyse FILE [--range full|studio] [--matrix 601|709] [--raw uyvy|v210 --width W --height H]
-               [--spec ${BUILTIN_SPECS.map(s => s.name).join('|')}] [--line N] [--json]`
+               [--spec ${BUILTIN_SPECS.map(s => s.name).join('|')}] [--line N] [--reference FILE] [--json]
+  --reference FILE   match this frame's bars against FILE's (read with the same --raw/--width/--height)`
 
 function oneOf<T extends string>(v: string | undefined, allowed: readonly T[], what: string): T | undefined {
   if (v === undefined) return undefined
@@ -28,11 +31,12 @@ function int(v: string | undefined, what: string): number | undefined {
   return Number(v)
 }
 
-function toJson(a: FrameAnalysis, specName: string, line?: LinePlot) {
-  return { ...analysisJson(a, specName), ...(line ? { line: lineJson(line) } : {}) }
+function toJson(json: LineupAnalysisJson, line?: LinePlot) {
+  return { ...json, ...(line ? { line: lineJson(line) } : {}) }
 }
 
-function summary(file: string, a: FrameAnalysis, specName: string, line?: LinePlot): string {
+function summary(file: string, a: FrameAnalysis, json: LineupAnalysisJson, line?: LinePlot): string {
+  const specName = json.spec
   const out: string[] = []
   const f = (v: number, d = 1) => v.toFixed(d).padStart(8)
   out.push(`${file}: ${a.width}×${a.height}, ${a.bitDepth}-bit, ${a.range} range, BT.${a.matrix}`)
@@ -49,8 +53,27 @@ function summary(file: string, a: FrameAnalysis, specName: string, line?: LinePl
   out.push(`chroma        Cb ${a.chroma.cbMin.toFixed(1)}…${a.chroma.cbMax.toFixed(1)}, Cr ${a.chroma.crMin.toFixed(1)}…${a.chroma.crMax.toFixed(1)}, p-p max ${a.chroma.ppMaxIre.toFixed(1)} IRE`)
   out.push('shares        ' + Object.entries(a.shares).map(([k, v]) => `${k} ${formatShare(v)}`).join(', '))
   out.push('')
-  out.push(`verdict       ${a.verdict.toUpperCase()} against ${specName}`)
-  for (const r of a.reasons) out.push(`  ${r.severity === 'fail' ? 'FAIL' : 'CAUTION'}  ${r.message}`)
+  const b = json.bars
+  if (b.recognised) {
+    out.push(`bars          ${b.label} (confidence ${b.confidence.toFixed(2)}), BT.${b.matrix}, read on ${b.scale === 'ire' ? 'IRE with 7.5 setup' : 'IRE without setup'}`)
+    out.push(`  bar        luma IRE (table)     chroma p-p IRE (table)    phase ° (table)`)
+    for (const f of b.bars) {
+      out.push(`  ${f.name.padEnd(9)}${f.lumaIre.toFixed(1).padStart(7)} (${f.expectedIre.toFixed(1).padStart(5)})${f.chromaPpIre.toFixed(1).padStart(10)} (${f.expectedChromaPpIre.toFixed(1).padStart(5)})${f.phaseDeg === null ? '' : `${f.phaseDeg.toFixed(1).padStart(13)} (${f.expectedPhaseDeg!.toFixed(1)})`}`)
+    }
+    out.push(`  black ${b.blackIre!.toFixed(2)} IRE (offset ${b.blackOffsetIre!.toFixed(2)}), setup ${b.setup}, luma gain ${b.lumaGainPct!.toFixed(2)} %, chroma gain ${b.chromaGainPct!.toFixed(2)} %, hue ${b.hueErrorDeg!.toFixed(2)}°`)
+    if (b.pluge) out.push(`  PLUGE ${b.pluge.map(p => `${p.label} ${p.relativeIre >= 0 ? '+' : ''}${p.relativeIre.toFixed(2)}`).join(', ')} IRE about black`)
+    out.push(`  bars check ${b.verdict!.toUpperCase()} (tolerances: ${b.toleranceSource})`)
+  }
+  else out.push(`bars          not judged as bars: ${b.notes.join('; ')}`)
+  const k = json.blanking
+  if (k.applicable && k.hBlankingUs !== null) {
+    out.push(`blanking      H ${k.hBlankingExact ? '' : 'at most '}${k.hBlankingUs.toFixed(2)} µs (picture ${k.left!.toFixed(2)}…${k.right!.toFixed(2)} samples), V ${k.vBlankingLinesPerField} lines a field (lines ${k.firstActiveLine}…${k.lastActiveLine}): ${k.verdict!.toUpperCase()}`)
+    out.push(`  against ${k.source}`)
+  }
+  if (json.match) out.push(`match         ${json.match.summary} against ${json.match.reference.frameName}: ${json.match.verdict.toUpperCase()}`)
+  out.push('')
+  out.push(`verdict       ${json.verdict.toUpperCase()} against ${specName}`)
+  for (const r of json.reasons) out.push(`  ${r.severity === 'fail' ? 'FAIL' : 'CAUTION'}  ${r.message}`)
   if (line) {
     out.push('')
     out.push(`line ${line.index}: x, µs, luma IRE, composite min/max IRE, chroma p-p IRE, phase°, R' G' B'`)
@@ -73,7 +96,7 @@ async function main(argv: string[]): Promise<number> {
       options: {
         range: { type: 'string' }, matrix: { type: 'string' }, raw: { type: 'string' },
         width: { type: 'string' }, height: { type: 'string' }, spec: { type: 'string' },
-        line: { type: 'string' }, json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
+        line: { type: 'string' }, reference: { type: 'string' }, json: { type: 'boolean' }, help: { type: 'boolean', short: 'h' },
       },
     })
   }
@@ -101,8 +124,15 @@ async function main(argv: string[]): Promise<number> {
 
   const input = await decodeFile(file, { range, raw, width, height })
   const a = analyseFrame(input, { matrix, spec })
+  let json = withLineup(analysisJson(a, spec.name), measureLineup(input, { matrix, spec }))
+  if (v.reference !== undefined) {
+    const refInput = await decodeFile(v.reference, { range, raw, width, height })
+    const refBars = measureLineup(refInput, { matrix, spec }).bars
+    if (!refBars.recognised) throw new UsageError(`the reference ${v.reference} is not bars: ${refBars.notes.join('; ')}`)
+    json = applyMatch(json, { bars: refBars, ref: { frameId: 0, frameName: v.reference, reelId: 0, reelName: 'reference' } }, barsTolerancesFor(spec))
+  }
   const line = lineIndex === undefined ? undefined : linePlot(input, lineIndex, { matrix })
-  process.stdout.write(v.json ? JSON.stringify(toJson(a, spec.name, line)) + '\n' : summary(file, a, spec.name, line) + '\n')
+  process.stdout.write(v.json ? JSON.stringify(toJson(json, line)) + '\n' : summary(file, a, json, line) + '\n')
   return 0
 }
 

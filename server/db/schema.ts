@@ -293,3 +293,15 @@ export const deliverySpecVersions = mysqlTable('delivery_spec_versions', {
   createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
   createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
 }, (t) => [uniqueIndex('delivery_spec_versions_uq').on(t.specId, t.version), index('delivery_spec_versions_team_idx').on(t.teamId)])
+
+ * The production's reference source for matching: one bars frame the other sources' bars are
+ * compared with (level offset, gain ratio, chroma gain, hue offset). One per production.
+ */
+export const barsReferences = mysqlTable('bars_references', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  productionId: ref('production_id').notNull().references(() => productions.id, { onDelete: 'cascade' }),
+  frameId: ref('frame_id').notNull().references(() => frames.id, { onDelete: 'cascade' }),
+  setBy: ref('set_by').references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('bars_references_production_uq').on(t.productionId), index('bars_references_frame_idx').on(t.frameId)])

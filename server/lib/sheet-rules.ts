@@ -30,6 +30,8 @@ export interface SheetRow {
   specVersion: number | null
   engineVersion: string | null
   reasons: SheetReason[]
+  /** Bars check, source match and blanking of the frame, one line each (empty when none applies). */
+  lineup?: string[]
   decision: Decision | null
   note: string
   decidedBy: string | null
@@ -177,7 +179,7 @@ export function framesWithScopes(rows: SheetRow[]): SheetRow[] {
 export const CSV_COLUMNS = [
   'index', 'timecode', 'name', 'status', 'luma_min_ire', 'luma_max_ire', 'composite_max_ire', 'out_of_range_pct',
   'verdict', 'reasons', 'decision', 'note', 'decided_by', 'decided_at', 'decision_history', 'spec', 'spec_version',
-  'engine_version',
+  'engine_version', 'lineup',
 ] as const
 
 const round = (v: number | null, digits: number) => (v === null ? '' : (Math.round(v * 10 ** digits) / 10 ** digits).toFixed(digits))
@@ -217,5 +219,6 @@ export function csvRecord(r: SheetRow): CsvRecord {
     spec: r.specName ?? '',
     spec_version: r.specVersion === null ? '' : String(r.specVersion),
     engine_version: r.engineVersion ?? '',
+    lineup: safeText((r.lineup ?? []).join(' | ')),
   }
 }

@@ -9,6 +9,8 @@ import { decisionHistory } from './decisions'
 import {
   signoffBlockers, summarise, type HistoryStep, type Overall, type SheetReason, type SheetRow, type SheetSummary,
 } from './sheet-rules'
+import { lineupLines } from '../../shared/utils/lineup'
+import type { LineupAnalysisJson } from '../../shared/utils/lineup'
 
 export type SignoffRow = typeof t.signoffs.$inferSelect
 
@@ -47,6 +49,7 @@ export async function loadSheetRows(db: DbOrTx, reelId: number, opts: { history?
     verdict: r.status === 'done' ? r.verdict : null,
     note: r.note ?? '',
     reasons: (result?.reasons ?? []).map((x): SheetReason => ({ limit: x.limit, message: x.message, severity: x.severity })),
+    lineup: r.status === 'done' ? lineupLines(result as LineupAnalysisJson | null) : [],
   }))
 }
 

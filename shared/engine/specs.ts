@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { BarsTolerancesSchema } from './bars-tolerances'
 
 export const SPEC_QUANTITIES = ['luma', 'composite', 'rgb', 'cb', 'cr'] as const
 export type SpecQuantity = typeof SPEC_QUANTITIES[number]
@@ -41,6 +42,8 @@ export const DeliverySpecSchema = z.object({
   title: z.string().trim().min(1).max(120),
   description: z.string().max(4000),
   limits: z.array(SpecLimitSchema).min(1).max(32),
+  /** Bars check and source-matching tolerances; common practice (bars.ts) when absent. */
+  barsTolerances: BarsTolerancesSchema.optional(),
 }).superRefine((spec, ctx) => {
   const seen = new Set<string>()
   spec.limits.forEach((l, i) => {

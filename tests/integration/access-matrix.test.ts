@@ -69,6 +69,10 @@ const ROUTES: Route[] = [
   // Previews: an allowed role gets what re-judging would change, and nothing is saved.
   { method: 'POST', file: 'specs/[id]/versions.post.ts', path: (c) => `/api/specs/${c.specId}/versions`, body: () => ({ spec: { ...matrixSpec, title: 'Matrix spec, edited' }, baseVersion: 1, preview: true }), permission: 'manageSpecs' },
   { method: 'PUT', file: 'productions/[id]/spec.put.ts', path: (c) => `/api/productions/${c.productionId}/spec`, body: (c) => ({ specId: c.specId, preview: true }), permission: 'manageSpecs' },
+  { method: 'GET', file: 'productions/[id]/matching.get.ts', path: (c) => `/api/productions/${c.productionId}/matching`, permission: 'view' },
+  // The matrix frame is a picture, not bars: an allowed role gets 422 "not recognised as colour bars".
+  { method: 'PUT', file: 'productions/[id]/reference.put.ts', path: (c) => `/api/productions/${c.productionId}/reference`, body: (c) => ({ frameId: c.frameId }), permission: 'decide' },
+  { method: 'DELETE', file: 'productions/[id]/reference.delete.ts', path: (c) => `/api/productions/${c.productionId}/reference`, permission: 'decide' },
   { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
   // Sign out everywhere ends the caller's own sessions: run on a throwaway session of the same person (see call()).
   { method: 'DELETE', file: 'auth/sessions.delete.ts', path: () => '/api/auth/sessions', permission: null, sessionOnly: true },

@@ -10,6 +10,7 @@ import { decodeBytes } from '../../server/lib/decode-file'
 import { keys, Storage, storageConfigFromEnv } from '../../server/lib/storage'
 import { QUEUE_ANALYSE, type AnalyseJob } from '../../shared/utils/queues'
 import { queueMissingViews } from '../../workers/sweeper'
+import { measureLineup, withLineup } from '../../shared/utils/lineup'
 import { Client } from '../support/api'
 import { APP_URL } from '../support/env'
 import { closeDb, createTeamWithRoles, db } from '../support/fixtures'
@@ -61,7 +62,8 @@ describe('upload → analysis', () => {
     for (const [i, f] of files.entries()) {
       const got = frames[i]
       expect(got.frame.status, got.frame.failReason).toBe('done')
-      const direct = analysisJson(analyseFrame(await decodeBytes(f.bytes, { range: 'full' }), { matrix: '601', spec }), spec.name)
+      const input = await decodeBytes(f.bytes, { range: 'full' })
+      const direct = withLineup(analysisJson(analyseFrame(input, { matrix: '601', spec }), spec.name), measureLineup(input, { matrix: '601', spec }))
       const { specVersion: _v, specTitle: _t, levels: _l, analysedAt: _a, durationMs: _d, histograms: _h, images, ...api } = got.analysis
       expect(api).toEqual(direct)
       expect(Object.keys(images).sort()).toEqual(['overlay', 'picture', 'thumb', 'vectorscope', 'waveform-flat', 'waveform-luma', 'waveform-rgb'])

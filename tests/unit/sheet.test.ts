@@ -111,7 +111,8 @@ describe('CSV', () => {
           { at: new Date('2026-03-01T09:00:10.000Z'), decision: 'accepted', note: '', by: 'Ben' },
           { at: new Date('2026-03-01T09:30:00.000Z'), decision: 'rejected', note: 'too hot', by: null },
           { at: decidedAt, decision: 'waived', note: 'line one\nline two', by: 'Ada' },
-        ] }),
+        ],
+        lineup: ['Bars check: pass', 'Blanking: fail'] }),
       row({ seq: 2, status: 'failed', failReason: 'The file cannot be decoded: truncated', verdict: null, lumaMinIre: null, lumaMaxIre: null, compMaxIre: null, outShare: null, specName: null, specVersion: null, engineVersion: null, decision: 'rejected', note: '=bad' }),
     ]
     const text = sheetCsv(rows)
@@ -126,6 +127,7 @@ describe('CSV', () => {
       // Every decision, oldest first: the earlier accept and reject are not lost when a later one replaces them.
       decision_history: '2026-03-01 09:00 UTC accepted by Ben; 2026-03-01 09:30 UTC rejected by a former member: too hot; '
         + '2026-03-01 10:20 UTC waived by Ada: line one\nline two',
+      lineup: 'Bars check: pass | Blanking: fail',
     })
     expect(parsed[1]).toMatchObject({ status: 'not measured', luma_min_ire: '', verdict: '', reasons: 'The file cannot be decoded: truncated', decision: 'rejected', note: '\'=bad' })
     expect(parsed.map((p) => csvRecord(rows[Number(p.index) - 1]!))).toEqual(parsed)
@@ -138,7 +140,8 @@ describe('PDF', () => {
     const rows = [
       row({ seq: 1, name: 'wide_01.png', lumaMinIre: 7.5, lumaMaxIre: 99.94, compMaxIre: 112.3, verdict: 'pass' }),
       row({ seq: 2, name: 'close_02.png', timecode: '01:02:03:04', lumaMinIre: -2.25, lumaMaxIre: 104.5, compMaxIre: 125.04, outShare: 0.0042, verdict: 'fail',
-        reasons: [{ limit: 'luma-max', message: 'Luma above white', severity: 'fail' }], decision: 'waived', note: 'Specular glint on the rail', decidedBy: 'Ada Reviewer', decidedAt: new Date() }),
+        reasons: [{ limit: 'luma-max', message: 'Luma above white', severity: 'fail' }], decision: 'waived', note: 'Specular glint on the rail', decidedBy: 'Ada Reviewer', decidedAt: new Date(),
+        lineup: ['Source match against Camera A / bars_a.v210: +2.1 IRE, gain ×1.000, chroma −4 %, hue +3.0°: FAIL'] }),
     ]
     const summary = summarise(rows)
     const pdf = await renderSheetPdf({
@@ -152,7 +155,8 @@ describe('PDF', () => {
     const text = (await parser.getText()).text.replace(/\s+/g, ' ')
     await parser.destroy()
     for (const s of ['Tidewrack Mill (fictional)', 'Day 2 - Camera B', 'PASS WITH EXCEPTIONS', 'Ada Reviewer', '2026-05-04 14:03 UTC', 'version 3', 'engine 1.0.0',
-      'wide_01.png', 'close_02.png', '01:02:03:04', '99.9', '104.5', '-2.3', '125.0', '0.420 %', 'Specular glint on the rail', 'ITU-R BT.1700', '120 IRE', '7.5 IRE', '115 IRE']) {
+      'wide_01.png', 'close_02.png', '01:02:03:04', '99.9', '104.5', '-2.3', '125.0', '0.420 %', 'Specular glint on the rail', 'ITU-R BT.1700', '120 IRE', '7.5 IRE', '115 IRE',
+      'Line-up checks (1)', 'Source match against Camera A / bars_a.v210: +2.1 IRE', 'SMPTE 170M as recalled']) {
       expect(text, s).toContain(s)
     }
     expect(text).toContain(CAUTION_TEXT.replace(/\s+/g, ' ').slice(0, 60))
