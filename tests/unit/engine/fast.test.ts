@@ -1,4 +1,4 @@
-// The fast kernels (shared/engine/fast.ts: 8-bit R'G'B', UYVY, v210, with vertical runs folded)
+// The fast kernels (shared/engine/fast/: 8-bit R'G'B', UYVY, v210, with vertical runs folded)
 // against the reference pass (analyseFrameReference: the per-pixel arithmetic of DESIGN.md
 // "Measurement", every pixel on its own). Every count, bin, histogram, density and extreme
 // must be identical; the only allowed difference is the luma mean of 8-bit R'G'B' (summed
@@ -7,7 +7,7 @@ import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, packV210 } from '../../../shared/engine/index'
 import { analyseFrameReference } from '../../../shared/engine/analyse'
-import { fastMode, fastTuning } from '../../../shared/engine/fast'
+import { fastMode, fastTuning } from '../../../shared/engine/fast/index'
 import { GAMUT_MARGIN_RGB_CODE8 } from '../../../shared/engine/analyse'
 import { HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE } from '../../../shared/engine/accumulate'
 import { MATRICES } from '../../../shared/engine/matrix'
