@@ -14,11 +14,11 @@ import { Kernel, markRun, max3, min3, Queue } from './kernel'
  * reference's arithmetic: luma and the R'/G'/B' levels per pixel, chroma looked up by the
  * pair of code differences (RgbChroma) and counted per pair.
  */
-function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, rowC: Int32Array, rowEnd: number): void {
+function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, rowEnd: number): void {
   const { wave, rowOff, colOf, maskCol } = k
   const { yHi, yLo, cHi, cLo, rgbHi, rgbLo } = k.lim
-  const { dl, dhi, dlo, wl, wf, wr, wg, wb } = k
-  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn } = tb
+  const { dl, dhi, dlo, wl, wf } = k
+  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn, cols } = tb
   const { tc, cnt } = ch
   // Module constants as locals: an imported binding is a cell load with a hole check on
   // every use, which V8 would otherwise repeat per pixel in the loop below.
@@ -45,9 +45,6 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Ar
     dl[iy]! += n
     dhi[ihi]! += n
     dlo[ilo]! += n
-    cR[R]! += n
-    cG[G]! += n
-    cB[B]! += n
     const mxc = max3(R, G, B); const mnc = min3(R, G, B)
     cMx[mxc]! += n
     cMn[mnc]! += n
@@ -63,9 +60,15 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Ar
       wl[rowOff[iy]! + col]! += n
       wf[rowOff[ihi]! + col]! += n
       wf[rowOff[ilo]! + col]! += n
-      wr[rowC[R]! + col]! += n
-      wg[rowC[G]! + col]! += n
-      wb[rowC[B]! + col]! += n
+      const cc = col * 768
+      cols[cc + R]! += n
+      cols[cc + 256 + G]! += n
+      cols[cc + 512 + B]! += n
+    }
+    else {
+      cR[R]! += n
+      cG[G]! += n
+      cB[B]! += n
     }
   }
   q.len = 0
@@ -195,6 +198,15 @@ export class RgbTables {
   readonly out = new Int32Array(256)
   readonly cR = new Uint32Array(256); readonly cG = new Uint32Array(256); readonly cB = new Uint32Array(256)
   readonly cMx = new Uint32Array(256); readonly cMn = new Uint32Array(256)
+  /**
+   * With densities: per waveform column, the count of each R', G' and B' code
+   * ([col·768 + code], [+ 256 + code], [+ 512 + code]). The R'G'B' waveform densities and the
+   * per-code counts are both folded from them after the pass (finish), one increment per
+   * channel and pixel instead of two.
+   */
+  cols = new Uint32Array(0)
+  /** Density row offset of each code's R'/G'/B' level, for the frame in hand. */
+  readonly rowC = new Int32Array(256)
   constructor(scale: number, offset: number, gamHi: number, gamLo: number) {
     for (let c = 0; c < 256; c++) {
       const v = c * scale + offset
@@ -213,11 +225,29 @@ export class RgbTables {
       rgbTableCache.set(key, tb)
     }
     tb.cR.fill(0); tb.cG.fill(0); tb.cB.fill(0); tb.cMx.fill(0); tb.cMn.fill(0)
+    if (k.wave) {
+      const n = k.colOf.length ? 768 * (k.colOf[k.colOf.length - 1]! + 1) : 0
+      if (tb.cols.length !== n) tb.cols = new Uint32Array(n)
+      else tb.cols.fill(0)
+      for (let c = 0; c < 256; c++) tb.rowC[c] = k.rowOff[tb.bin[c]!]!
+    }
     return tb
   }
 
   finish(k: Kernel): void {
     const { bin, cR, cG, cB, cMx, cMn } = this
+    if (k.wave) {
+      const { cols, rowC } = this
+      const { wr, wg, wb } = k
+      for (let col = 0, o = 0; o < cols.length; col++, o += 768) {
+        for (let c = 0; c < 256; c++) {
+          const r = cols[o + c]!; const g = cols[o + 256 + c]!; const b = cols[o + 512 + c]!
+          const at = rowC[c]! + col
+          wr[at]! += r; wg[at]! += g; wb[at]! += b
+          cR[c]! += r; cG[c]! += g; cB[c]! += b
+        }
+      }
+    }
     for (let c = 0; c < 256; c++) {
       const b = bin[c]!
       k.dr[b]! += cR[c]!; k.dg[b]! += cG[c]!; k.db[b]! += cB[c]!; k.dmx[b]! += cMx[c]!; k.dmn[b]! += cMn[c]!
@@ -235,11 +265,11 @@ const rgbTableCache = new Map<string, RgbTables>()
  * cannot fail it: a loop-invariant branch around them cost V8 more than the tests themselves.
  */
 function rgbRows(k: Kernel, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, data: Uint8Array, width: number, chans: number, x0: number, n: number,
-  r0: number, r1: number, keys: Int32Array, rowC: Int32Array): number {
+  r0: number, r1: number, keys: Int32Array): number {
   const { wave, rowOff, colOf, mask, maskCol, maskRow } = k
   const { yHi, yLo, cHi, cLo, rgbHi, rgbLo } = k.lim
-  const { dl, dhi, dlo, wl, wf, wr, wg, wb } = k
-  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn } = tb
+  const { dl, dhi, dlo, wl, wf } = k
+  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn, cols } = tb
   const { tc, cnt } = ch
   // Module constants as locals: an imported binding is a cell load with a hole check on
   // every use, which V8 would otherwise repeat per pixel in the loop below.
@@ -272,9 +302,6 @@ function rgbRows(k: Kernel, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, data: 
       dl[iy]!++
       dhi[ihi]!++
       dlo[ilo]!++
-      cR[R]!++
-      cG[G]!++
-      cB[B]!++
       const mxc = max3(R, G, B); const mnc = min3(R, G, B)
       cMx[mxc]!++
       cMn[mnc]!++
@@ -288,9 +315,15 @@ function rgbRows(k: Kernel, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, data: 
         wl[rowOff[iy]! + col]!++
         wf[rowOff[ihi]! + col]!++
         wf[rowOff[ilo]! + col]!++
-        wr[rowC[R]! + col]!++
-        wg[rowC[G]! + col]!++
-        wb[rowC[B]! + col]!++
+        const cc = col * 768
+        cols[cc + R]!++
+        cols[cc + 256 + G]!++
+        cols[cc + 512 + B]!++
+      }
+      else {
+        cR[R]!++
+        cG[G]!++
+        cB[B]!++
       }
     }
   }
@@ -340,8 +373,6 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
   const bT = ch.bitsFor(k.lim)
   const table = fastMode.chroma === 'table' || (fastMode.chroma === 'auto' && chromaCoherent(data, width, height, chans))
   const { kr, kb, cbDiv, crDiv } = MATRICES[matrix]
-  const rowC = new Int32Array(256)
-  if (k.wave) for (let c = 0; c < 256; c++) rowC[c] = k.rowOff[tb.bin[c]!]!
   const keys = new Int32Array(stripe)
   const runs = new Int32Array(stripe)
   const q = new Queue(stripe)
@@ -385,8 +416,8 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
       if (direct) {
         const r1 = Math.min(height, row + DIRECT_BLOCK)
         const reps = table
-          ? rgbRows(k, tb, ch, bT, data, width, chans, x0, n, row, r1, keys, rowC)
-          : rgbRowsMath(k, tb, data, width, chans, x0, n, row, r1, keys, scale, kr, kb, cbDiv, crDiv, rowC)
+          ? rgbRows(k, tb, ch, bT, data, width, chans, x0, n, row, r1, keys)
+          : rgbRowsMath(k, tb, data, width, chans, x0, n, row, r1, keys, scale, kr, kb, cbDiv, crDiv)
         // Back to folding runs once most pixels repeat the one above (a graphic, a letterbox).
         if (fastMode.rgb === 'auto' && 2 * reps > (r1 - row) * n) {
           direct = false
@@ -419,7 +450,7 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
         runs[p] = 1
       }
       q.len = m
-      if (m) rgbBatch(k, q, tb, ch, bT, rowC, row)
+      if (m) rgbBatch(k, q, tb, ch, bT, row)
       row++
       // Grain: when most runs end after a row or two, per-pixel measurement is cheaper.
       busy = 2 * m > n ? busy + 1 : 0
@@ -427,7 +458,7 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
         m = 0
         for (let p = 0; p < n; p++) if (runs[p]) m = queueRun(m, p, x0)
         q.len = m
-        if (m) rgbBatch(k, q, tb, ch, bT, rowC, row)
+        if (m) rgbBatch(k, q, tb, ch, bT, row)
         direct = true
       }
     }
@@ -437,7 +468,7 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
       let m = 0
       for (let p = 0; p < n; p++) if (runs[p]) m = queueRun(m, p, x0)
       q.len = m
-      if (m) rgbBatch(k, q, tb, ch, bT, rowC, height)
+      if (m) rgbBatch(k, q, tb, ch, bT, height)
     }
   }
   return { tb, ch }
@@ -450,12 +481,12 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
  * same results (fast.test.ts runs both).
  */
 function rgbRowsMath(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: number, x0: number, n: number, r0: number, r1: number,
-  keys: Int32Array, scale: number, kr: number, kb: number, cbDiv: number, crDiv: number, rowC: Int32Array): number {
+  keys: Int32Array, scale: number, kr: number, kb: number, cbDiv: number, crDiv: number): number {
   const { uK, vK, cbOff, hs, wave, rowOff, colOf, mask, maskCol, maskRow } = k
   const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo } = k.lim
   const bin = tb.bin
-  const { dl, dhi, dlo, cbH, crH, wl, wf, wr, wg, wb, vec } = k
-  const { S, out: gOut, cR, cG, cB, cMx, cMn } = tb
+  const { dl, dhi, dlo, cbH, crH, wl, wf, vec } = k
+  const { S, out: gOut, cR, cG, cB, cMx, cMn, cols } = tb
   // Module constants as locals: an imported binding is a cell load with a hole check on
   // every use, which V8 would otherwise repeat per pixel in the loop below.
   const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
@@ -500,9 +531,6 @@ function rgbRowsMath(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, 
       dl[iy]!++
       dhi[ihi]!++
       dlo[ilo]!++
-      cR[R]!++
-      cG[G]!++
-      cB[B]!++
       const mxc = max3(R, G, B); const mnc = min3(R, G, B)
       cMx[mxc]!++
       cMn[mnc]!++
@@ -521,9 +549,15 @@ function rgbRowsMath(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, 
         wl[rowOff[iy]! + col]!++
         wf[rowOff[ihi]! + col]!++
         wf[rowOff[ilo]! + col]!++
-        wr[rowC[R]! + col]!++
-        wg[rowC[G]! + col]!++
-        wb[rowC[B]! + col]!++
+        const cc = col * 768
+        cols[cc + R]!++
+        cols[cc + 256 + G]!++
+        cols[cc + 512 + B]!++
+      }
+      else {
+        cR[R]!++
+        cG[G]!++
+        cB[B]!++
       }
     }
   }
