@@ -17,8 +17,8 @@ import { Kernel, markRun, max3, min3, Queue } from './kernel'
 function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, rowEnd: number): void {
   const { wave, rowOff, colOf, maskCol } = k
   const { yHi, yLo, cHi, cLo, rgbHi, rgbLo } = k.lim
-  const { dl, dhi, dlo, wl, wf } = k
-  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn, cols } = tb
+  const { dl, dhi, dlo, wl, wf, wr, wg, wb } = k
+  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn, rowC } = tb
   const { tc, cnt } = ch
   // Module constants as locals: an imported binding is a cell load with a hole check on
   // every use, which V8 would otherwise repeat per pixel in the loop below.
@@ -45,6 +45,9 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Ar
     dl[iy]! += n
     dhi[ihi]! += n
     dlo[ilo]! += n
+    cR[R]! += n
+    cG[G]! += n
+    cB[B]! += n
     const mxc = max3(R, G, B); const mnc = min3(R, G, B)
     cMx[mxc]! += n
     cMn[mnc]! += n
@@ -60,15 +63,9 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Ar
       wl[rowOff[iy]! + col]! += n
       wf[rowOff[ihi]! + col]! += n
       wf[rowOff[ilo]! + col]! += n
-      const cc = col * 768
-      cols[cc + R]! += n
-      cols[cc + 256 + G]! += n
-      cols[cc + 512 + B]! += n
-    }
-    else {
-      cR[R]! += n
-      cG[G]! += n
-      cB[B]! += n
+      wr[rowC[R]! + col]! += n
+      wg[rowC[G]! + col]! += n
+      wb[rowC[B]! + col]! += n
     }
   }
   q.len = 0
@@ -199,10 +196,11 @@ export class RgbTables {
   readonly cR = new Uint32Array(256); readonly cG = new Uint32Array(256); readonly cB = new Uint32Array(256)
   readonly cMx = new Uint32Array(256); readonly cMn = new Uint32Array(256)
   /**
-   * With densities: per waveform column, the count of each R', G' and B' code
-   * ([col·768 + code], [+ 256 + code], [+ 512 + code]). The R'G'B' waveform densities and the
-   * per-code counts are both folded from them after the pass (finish), one increment per
-   * channel and pixel instead of two.
+   * With densities, for the stripe in hand when it is measured pixel by pixel: per waveform
+   * column, the count of each R', G' and B' code ([col·768 + code], [+ 256 + code],
+   * [+ 512 + code], col from the stripe's first). The R'G'B' waveform densities and the
+   * per-code counts are both folded from them when the stripe is done (foldStripe): one
+   * increment per channel and pixel instead of two. Zero between stripes.
    */
   cols = new Uint32Array(0)
   /** Density row offset of each code's R'/G'/B' level, for the frame in hand. */
@@ -225,29 +223,29 @@ export class RgbTables {
       rgbTableCache.set(key, tb)
     }
     tb.cR.fill(0); tb.cG.fill(0); tb.cB.fill(0); tb.cMx.fill(0); tb.cMn.fill(0)
-    if (k.wave) {
-      const n = k.colOf.length ? 768 * (k.colOf[k.colOf.length - 1]! + 1) : 0
-      if (tb.cols.length !== n) tb.cols = new Uint32Array(n)
-      else tb.cols.fill(0)
-      for (let c = 0; c < 256; c++) tb.rowC[c] = k.rowOff[tb.bin[c]!]!
-    }
+    if (k.wave) for (let c = 0; c < 256; c++) tb.rowC[c] = k.rowOff[tb.bin[c]!]!
     return tb
+  }
+
+  /** Folds and clears the per-column code counts of density columns c0…c1 (one stripe). */
+  foldStripe(k: Kernel, c0: number, c1: number): void {
+    const { cols, rowC, cR, cG, cB } = this
+    const { wr, wg, wb } = k
+    for (let col = c0, o = 0; col <= c1; col++, o += 768) {
+      for (let c = 0; c < 256; c++) {
+        const r = cols[o + c]!; const g = cols[o + 256 + c]!; const b = cols[o + 512 + c]!
+        if (r | g | b) {
+          const at = rowC[c]! + col
+          wr[at]! += r; wg[at]! += g; wb[at]! += b
+          cR[c]! += r; cG[c]! += g; cB[c]! += b
+          cols[o + c] = 0; cols[o + 256 + c] = 0; cols[o + 512 + c] = 0
+        }
+      }
+    }
   }
 
   finish(k: Kernel): void {
     const { bin, cR, cG, cB, cMx, cMn } = this
-    if (k.wave) {
-      const { cols, rowC } = this
-      const { wr, wg, wb } = k
-      for (let col = 0, o = 0; o < cols.length; col++, o += 768) {
-        for (let c = 0; c < 256; c++) {
-          const r = cols[o + c]!; const g = cols[o + 256 + c]!; const b = cols[o + 512 + c]!
-          const at = rowC[c]! + col
-          wr[at]! += r; wg[at]! += g; wb[at]! += b
-          cR[c]! += r; cG[c]! += g; cB[c]! += b
-        }
-      }
-    }
     for (let c = 0; c < 256; c++) {
       const b = bin[c]!
       k.dr[b]! += cR[c]!; k.dg[b]! += cG[c]!; k.db[b]! += cB[c]!; k.dmx[b]! += cMx[c]!; k.dmn[b]! += cMn[c]!
@@ -265,11 +263,11 @@ const rgbTableCache = new Map<string, RgbTables>()
  * cannot fail it: a loop-invariant branch around them cost V8 more than the tests themselves.
  */
 function rgbRows(k: Kernel, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, data: Uint8Array, width: number, chans: number, x0: number, n: number,
-  r0: number, r1: number, keys: Int32Array): number {
+  r0: number, r1: number, keys: Int32Array, c0: number): number {
   const { wave, rowOff, colOf, mask, maskCol, maskRow } = k
   const { yHi, yLo, cHi, cLo, rgbHi, rgbLo } = k.lim
-  const { dl, dhi, dlo, wl, wf } = k
-  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn, cols } = tb
+  const { dl, dhi, dlo, wl, wf, wr, wg, wb } = k
+  const { S, bin, out: gOut, cR, cG, cB, cMx, cMn, cols, rowC } = tb
   const { tc, cnt } = ch
   // Module constants as locals: an imported binding is a cell load with a hole check on
   // every use, which V8 would otherwise repeat per pixel in the loop below.
@@ -315,10 +313,20 @@ function rgbRows(k: Kernel, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, data: 
         wl[rowOff[iy]! + col]!++
         wf[rowOff[ihi]! + col]!++
         wf[rowOff[ilo]! + col]!++
-        const cc = col * 768
-        cols[cc + R]!++
-        cols[cc + 256 + G]!++
-        cols[cc + 512 + B]!++
+        if (c0 >= 0) {
+          const cc = (col - c0) * 768
+          cols[cc + R]!++
+          cols[cc + 256 + G]!++
+          cols[cc + 512 + B]!++
+        }
+        else {
+          wr[rowC[R]! + col]!++
+          wg[rowC[G]! + col]!++
+          wb[rowC[B]! + col]!++
+          cR[R]!++
+          cG[G]!++
+          cB[B]!++
+        }
       }
       else {
         cR[R]!++
@@ -398,11 +406,16 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
     for (let j = 0; j < nb; j++) if (data[at + j] !== data[above + j]) return false
     return true
   }
+  // A stripe spans at most stripe + 1 density columns (one when columns are decimated).
+  if (k.wave && tb.cols.length < (stripe + 1) * 768) tb.cols = new Uint32Array((stripe + 1) * 768)
   for (let x0 = 0; x0 < width; x0 += stripe) {
     const n = Math.min(stripe, width - x0)
+    const c0 = k.wave ? k.colOf[x0]! : 0
+    const c1 = k.wave ? k.colOf[x0 + n - 1]! : 0
     runs.fill(0)
     keys.fill(-1)
     let direct = fastMode.rgb === 'direct'
+    let byColumn = false
     let busy = 0
     let row = 0
     // Rows that repeated the one above, not yet added to the runs; open: every pixel has a run.
@@ -414,10 +427,15 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
     }
     while (row < height) {
       if (direct) {
+        // Per-column code counts pay for their fold (256 codes a column) once enough rows
+        // of the stripe are left to measure pixel by pixel; until then (and on SD-sized
+        // stripes that go per pixel late) the densities are counted directly (cc = −1).
+        if (!byColumn && (height - row) * n >= 2 * (c1 - c0 + 1) * 256) byColumn = true
+        const cc = byColumn ? c0 : -1
         const r1 = Math.min(height, row + DIRECT_BLOCK)
         const reps = table
-          ? rgbRows(k, tb, ch, bT, data, width, chans, x0, n, row, r1, keys)
-          : rgbRowsMath(k, tb, data, width, chans, x0, n, row, r1, keys, scale, kr, kb, cbDiv, crDiv)
+          ? rgbRows(k, tb, ch, bT, data, width, chans, x0, n, row, r1, keys, cc)
+          : rgbRowsMath(k, tb, data, width, chans, x0, n, row, r1, keys, scale, kr, kb, cbDiv, crDiv, cc)
         // Back to folding runs once most pixels repeat the one above (a graphic, a letterbox).
         if (fastMode.rgb === 'auto' && 2 * reps > (r1 - row) * n) {
           direct = false
@@ -470,6 +488,7 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
       q.len = m
       if (m) rgbBatch(k, q, tb, ch, bT, height)
     }
+    if (byColumn && k.wave) tb.foldStripe(k, c0, c1)
   }
   return { tb, ch }
 }
@@ -481,12 +500,12 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
  * same results (fast.test.ts runs both).
  */
 function rgbRowsMath(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, ch: number, x0: number, n: number, r0: number, r1: number,
-  keys: Int32Array, scale: number, kr: number, kb: number, cbDiv: number, crDiv: number): number {
+  keys: Int32Array, scale: number, kr: number, kb: number, cbDiv: number, crDiv: number, c0: number): number {
   const { uK, vK, cbOff, hs, wave, rowOff, colOf, mask, maskCol, maskRow } = k
   const { yHi, yLo, cHi, cLo, rgbHi, rgbLo, cbHi, cbLo, crHi, crLo } = k.lim
   const bin = tb.bin
-  const { dl, dhi, dlo, cbH, crH, wl, wf, vec } = k
-  const { S, out: gOut, cR, cG, cB, cMx, cMn, cols } = tb
+  const { dl, dhi, dlo, cbH, crH, wl, wf, wr, wg, wb, vec } = k
+  const { S, out: gOut, cR, cG, cB, cMx, cMn, cols, rowC } = tb
   // Module constants as locals: an imported binding is a cell load with a hole check on
   // every use, which V8 would otherwise repeat per pixel in the loop below.
   const lvScale = LV_SCALE; const lvOff = LV_OFF; const compHi = COMP_HI; const compLo = COMP_LO
@@ -549,10 +568,20 @@ function rgbRowsMath(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, 
         wl[rowOff[iy]! + col]!++
         wf[rowOff[ihi]! + col]!++
         wf[rowOff[ilo]! + col]!++
-        const cc = col * 768
-        cols[cc + R]!++
-        cols[cc + 256 + G]!++
-        cols[cc + 512 + B]!++
+        if (c0 >= 0) {
+          const cc = (col - c0) * 768
+          cols[cc + R]!++
+          cols[cc + 256 + G]!++
+          cols[cc + 512 + B]!++
+        }
+        else {
+          wr[rowC[R]! + col]!++
+          wg[rowC[G]! + col]!++
+          wb[rowC[B]! + col]!++
+          cR[R]!++
+          cG[G]!++
+          cB[B]!++
+        }
       }
       else {
         cR[R]!++

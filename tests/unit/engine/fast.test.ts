@@ -5,7 +5,7 @@
 // per run rather than per pixel), which may differ in the last bits of a double.
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { analyseFrame, packV210 } from '../../../shared/engine/index'
+import { AnalysisScratch, analyseFrame, packV210 } from '../../../shared/engine/index'
 import { analyseFrameReference } from '../../../shared/engine/analyse'
 import { fastMode, fastTuning } from '../../../shared/engine/fast/index'
 import { GAMUT_MARGIN_RGB_CODE8 } from '../../../shared/engine/analyse'
@@ -223,6 +223,26 @@ describe('fast kernels equal the reference pass', () => {
     finally {
       Object.assign(fastMode, saved)
     }
+  })
+
+  it('8-bit R\'G\'B\' wider than the waveform (two frame columns to a density column), frame after frame with one scratch, gives the same', () => {
+    // The R'G'B' waveform densities and per-code counts are folded from per-column code
+    // counts kept between frames: a column fold or a reset gone wrong shows here, where
+    // columns are decimated and widths change from frame to frame.
+    const scratch = new AnalysisScratch()
+    const wide = fc.record({
+      w: fc.integer({ min: 513, max: 700 }).map(n => n * 2),
+      h: fc.integer({ min: 1, max: 4 }),
+      templates: fc.integer({ min: 1, max: 3 }),
+      change: fc.constantFrom(0, 0.3, 1),
+      seed: fc.integer(),
+    })
+    fc.assert(fc.property(wide, fc.constantFrom('rgb3', 'rgb4', 'rgbStudio'), fc.constantFrom<MatrixName>('601', '709'), (sh, kind, matrix) => {
+      const input = frameOf(sh, kind)
+      const fast = analyseFrame(input, { matrix, keepDensities: true, scratch })
+      expect(fast.waveform!.decimation).toBe(2)
+      expectSame(fast, analyseFrameReference(input, { matrix, keepDensities: true }), input)
+    }), { numRuns: 25 })
   })
 
   it('for every one of the 2^24 8-bit triples, the R\', G\', B\' level bins and gamut flags depend on the channel code alone, and full range stays legal', () => {
