@@ -345,7 +345,7 @@ function rgbRows(k: Kernel, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, data: 
 const DIRECT_BLOCK = 8
 
 /** Which route the 8-bit R'G'B' kernel takes: chosen per stripe as it goes (auto), or one only (for the tests). */
-export const fastMode = { rgb: 'auto' as 'auto' | 'direct' | 'runs', chroma: 'auto' as 'auto' | 'table' | 'math' }
+export const fastMode = { rgb: 'auto' as 'auto' | 'direct' | 'runs', chroma: 'auto' as 'auto' | 'table' | 'math', columns: 'auto' as 'auto' | 'always' }
 
 /**
  * Whether a picture's colour changes little from one pixel to the next, judged on up to 4096
@@ -430,7 +430,7 @@ export function rgb8(data: Uint8Array, width: number, height: number, chans: num
         // Per-column code counts pay for their fold (256 codes a column) once enough rows
         // of the stripe are left to measure pixel by pixel; until then (and on SD-sized
         // stripes that go per pixel late) the densities are counted directly (cc = −1).
-        if (!byColumn && (height - row) * n >= 2 * (c1 - c0 + 1) * 256) byColumn = true
+        if (!byColumn && (fastMode.columns === 'always' || (height - row) * n >= 2 * (c1 - c0 + 1) * 256)) byColumn = true
         const cc = byColumn ? c0 : -1
         const r1 = Math.min(height, row + DIRECT_BLOCK)
         const reps = table
