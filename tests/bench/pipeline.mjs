@@ -6,12 +6,19 @@
 // Not a test: the figures depend on the machine and on whatever else runs on it.
 //
 //   LW_BENCH_FRAMES=200 LW_BENCH_PER_REQUEST=4 LW_BENCH_PARALLEL=3 npm run bench:pipeline
+// The frames are 1080p stills cut from real photographs (Debian's mate-backgrounds, installed
+// when missing); LW_BENCH_SOURCE=synthetic uploads the invented noisy frames instead. Beside
+// the worker's CPU per frame it prints the CPU of one ffmpeg command per frame doing what a
+// script around ffmpeg would (decode the PNG, signalstats, waveform PNG, vectorscope PNG,
+// thumbnail), measured on a sample of the same files before and after the run.
 // The app is served from a copy of .output, so that a build by `npm test` during the run
 // cannot pull files from under it. LW_BENCH_SKIP_BUILD=1 copies the .output already there
 // (a build of our own would race theirs on .output and .nuxt).
+import { spawnSync } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
 import { availableParallelism, loadavg } from 'node:os'
-import { cpSync, existsSync, readdirSync, readFileSync, rmSync } from 'node:fs'
+import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs'
+import { tmpdir } from 'node:os'
 import { basename, join } from 'node:path'
 import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from '../../docker-local/services.mjs'
 import { ensureBuild, ensureNodeModules, log, migrateAndSeed, signInDemoOwner, startApp, waitForHttp } from '../../docker-local/stack.mjs'
@@ -20,6 +27,9 @@ const FRAMES = Number(process.env.LW_BENCH_FRAMES ?? 200)
 const PER_REQUEST = Number(process.env.LW_BENCH_PER_REQUEST ?? 4)
 const PARALLEL = Number(process.env.LW_BENCH_PARALLEL ?? 3)
 const TIMEOUT_MS = Number(process.env.LW_BENCH_TIMEOUT_MS ?? 30 * 60_000)
+const SOURCE = process.env.LW_BENCH_SOURCE ?? 'photos'
+/** Frames the ffmpeg command is run on, before the upload and again after the analyses. */
+const FFMPEG_SAMPLE = 12
 
 const p = profile('bench')
 let stopApp = async () => {}
@@ -50,6 +60,32 @@ function benchPids() {
   return { 'app server': apps.server ?? 0, worker: apps.worker ?? 0, 'S3 fake': pid('s3.pid'), MariaDB: pid('mariadb.pid'), Redis: pid('redis.pid'), 'bench client': process.pid }
 }
 
+/**
+ * CPU ms per frame (utime + stime from -benchmark, the whole process) of the one ffmpeg
+ * command a script would run per still: decode the PNG, signalstats to a file, a waveform
+ * PNG, a vectorscope PNG and a 320-wide JPEG thumbnail, one thread as the worker's jobs are.
+ */
+function ffmpegCommandMs(paths) {
+  const out = mkdtempSync(join(tmpdir(), 'linewise-ffjob-'))
+  try {
+    let total = 0
+    for (const path of paths) {
+      const graph = `[0:v]split=2[p][q];[p]format=yuv444p,split=3[a][b][c];[a]signalstats,metadata=mode=print:file=${join(out, 'stats.txt')}[s];`
+        + '[b]waveform[w];[c]vectorscope[v];[q]scale=320:-2[t]'
+      const r = spawnSync('ffmpeg', ['-hide_banner', '-nostdin', '-y', '-threads', '1', '-filter_threads', '1', '-filter_complex_threads', '1',
+        '-benchmark', '-nostats', '-v', 'info', '-i', path, '-filter_complex', graph,
+        '-map', '[s]', '-f', 'null', '-', '-map', '[w]', '-update', '1', join(out, 'waveform.png'),
+        '-map', '[v]', '-update', '1', join(out, 'vectorscope.png'), '-map', '[t]', '-update', '1', '-q:v', '4', join(out, 'thumb.jpg')])
+      const m = /utime=([\d.]+)s stime=([\d.]+)s/.exec(r.stderr?.toString() ?? '')
+      if (r.status !== 0 || !m) throw new Error(`ffmpeg command failed: ${r.error?.message ?? r.stderr?.toString().slice(-400)}`)
+      total += (Number(m[1]) + Number(m[2])) * 1000
+    }
+    return total / paths.length
+  } finally {
+    rmSync(out, { recursive: true, force: true })
+  }
+}
+
 const pct = (sorted, q) => sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil(q * sorted.length) - 1))]
 
 async function api(base, cookie, method, path, body) {
@@ -72,9 +108,12 @@ try {
   if (process.env.LW_BENCH_SKIP_BUILD !== '1') ensureBuild()
 
   // Made once and kept under .data/bench/frames: generating 200 PNGs takes about a minute.
-  const { ensureFrames } = await import('./pipeline-frames.mjs')
-  log(`preparing ${FRAMES} 1080p PNG frames`)
-  const paths = await ensureFrames(join(p.dataDir, 'frames'), FRAMES)
+  const { ensureFrames, ensurePhotoFrames } = await import('./pipeline-frames.mjs')
+  log(`preparing ${FRAMES} 1080p PNG frames (${SOURCE})`)
+  const paths = SOURCE === 'synthetic' ? await ensureFrames(join(p.dataDir, 'frames'), FRAMES) : await ensurePhotoFrames(join(p.dataDir, 'frames-photos'), FRAMES)
+  const sample = paths.slice(0, Math.min(FFMPEG_SAMPLE, paths.length))
+  log(`ffmpeg command on ${sample.length} of the frames`)
+  const ffBefore = ffmpegCommandMs(sample)
   const files = paths.map((path) => ({ name: basename(path), bytes: readFileSync(path) }))
   const totalMb = files.reduce((s, f) => s + f.bytes.length, 0) / 2 ** 20
 
@@ -137,6 +176,9 @@ try {
   }
   const wallMs = Date.now() - t0
   const cpu = Object.entries(pids).map(([k, pid]) => [k, (cpuMs(pid) - cpu0[k]) / FRAMES])
+  log(`ffmpeg command on ${sample.length} of the frames again`)
+  const ffMs = Math.min(ffBefore, ffmpegCommandMs(sample))
+  const workerMs = cpu.find(([k]) => k === 'worker')[1]
   process.stdout.write('\n')
   const [rows] = await conn.query(`SELECT f.created_at AS stored, a.created_at AS analysed, a.duration_ms AS job
     FROM frames f JOIN analyses a ON a.frame_id = f.id WHERE f.reel_id = ?`, [reel.id])
@@ -147,7 +189,7 @@ try {
   const lastDone = Math.max(...rows.map((r) => +r.analysed))
   const fps = rows.length / ((lastDone - firstStored) / 1000)
   console.log(`
-  Pipeline benchmark: ${rows.length} × 1920×1080 PNG (${(totalMb / FRAMES).toFixed(1)} MB each), ${availableParallelism()} cores, load before ${loadavg()[0].toFixed(1)}
+  Pipeline benchmark: ${rows.length} × 1920×1080 PNG ${SOURCE === 'synthetic' ? 'invented noisy frames' : 'stills cut from photographs'} (${(totalMb / FRAMES).toFixed(1)} MB each), ${availableParallelism()} cores, load before ${loadavg()[0].toFixed(1)}
   worker concurrency         ${process.env.LW_WORKER_CONCURRENCY ?? `${availableParallelism()} (cores)`}
   uploads finished after     ${(uploadedMs / 1000).toFixed(1)} s (${(FRAMES / (uploadedMs / 1000)).toFixed(1)} frames/s accepted)
   all analysed after         ${(wallMs / 1000).toFixed(1)} s
@@ -156,6 +198,9 @@ try {
   one job in the worker      p50 ${pct(jobs, 0.5)} ms, p95 ${pct(jobs, 0.95)} ms (fetch, decode, engine, images, puts)
   CPU per frame              ${cpu.map(([k, ms]) => `${k} ${ms.toFixed(0)} ms`).join(', ')}
                              total ${cpu.reduce((t, [, ms]) => t + ms, 0).toFixed(0)} ms; ${availableParallelism()} cores give ${(availableParallelism() * 1000 / cpu.reduce((t, [, ms]) => t + ms, 0)).toFixed(1)} frames/s at most
+  worker vs one ffmpeg command worker ${workerMs.toFixed(0)} ms CPU per frame (fetch, decode, measure, six images, puts, row)
+                             ffmpeg ${ffMs.toFixed(0)} ms CPU per frame (decode, signalstats, waveform PNG, vectorscope PNG, thumbnail; ${sample.length} frames, the lesser of before and after)
+                             ratio ${(workerMs / ffMs).toFixed(2)} (target ≤ 1.0${workerMs <= ffMs ? ', met' : ', NOT met'})
 `)
   code = rows.length === FRAMES ? 0 : 1
 } catch (e) {
