@@ -10,7 +10,7 @@ import { Client } from '../support/api'
 import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '../support/fixtures'
 import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number }
+type Ctx = { teamId: number; productionId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; clipId: number }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'
   /** The allowed answer may be a 404 about the target's state (checked to carry its own message). */
@@ -57,6 +57,17 @@ const ROUTES: Route[] = [
   { method: 'GET', file: 'reels/[id]/sheet.pdf.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.pdf`, permission: 'downloadSheet' },
   { method: 'GET', file: 'reels/[id]/sheet.csv.get.ts', path: (c) => `/api/reels/${c.emptyReelId}/sheet.csv`, permission: 'downloadSheet' },
   { method: 'POST', file: 'reels/[id]/signoff.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/signoff`, permission: 'signOff' },
+  // Clips: the clip of each case is freshly announced (still uploading), so allowed roles get
+  // 409/422 about its state from the routes that need a measured or stored clip.
+  { method: 'GET', file: 'reels/[id]/clips.get.ts', path: (c) => `/api/reels/${c.reelId}/clips`, permission: 'view' },
+  // JSON instead of multipart: an allowed role gets 400 "send the clip…".
+  { method: 'POST', file: 'reels/[id]/clips.post.ts', path: (c) => `/api/reels/${c.reelId}/clips`, permission: 'upload' },
+  { method: 'POST', file: 'reels/[id]/clip-uploads.post.ts', path: (c) => `/api/reels/${c.reelId}/clip-uploads`, body: () => ({ name: 'cut.mov', size: 1000 }), permission: 'upload' },
+  { method: 'POST', file: 'clips/[id]/complete.post.ts', path: (c) => `/api/clips/${c.clipId}/complete`, body: () => ({ parts: [{ partNumber: 1, etag: '"none"' }] }), permission: 'upload' },
+  { method: 'GET', file: 'clips/[id]/index.get.ts', path: (c) => `/api/clips/${c.clipId}`, permission: 'view' },
+  { method: 'GET', file: 'clips/[id]/timeline.get.ts', path: (c) => `/api/clips/${c.clipId}/timeline`, permission: 'view' },
+  { method: 'POST', file: 'clips/[id]/cancel.post.ts', path: (c) => `/api/clips/${c.clipId}/cancel`, permission: 'upload' },
+  { method: 'POST', file: 'clips/[id]/frames.post.ts', path: (c) => `/api/clips/${c.clipId}/frames`, body: () => ({ frame: 0 }), permission: 'view' },
   { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
 ]
 
@@ -106,7 +117,8 @@ async function freshCtx(): Promise<Ctx> {
     teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
   }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
-  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId }
+  const clip = await clients.get('owner')!.post(`/api/reels/${reelId}/clip-uploads`, { name: 'matrix.mov', size: 1000 })
+  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, clipId: clip.body.clipId }
 }
 
 async function call(client: Client, r: Route, c: Ctx) {

@@ -3,12 +3,13 @@
 // pipeline does the rest: the original in S3, a `queued` frame, the analyse job (scopes,
 // line plot, range overlay, verdict, decisions, sheet).
 import { spawn } from 'node:child_process'
+import { createHash } from 'node:crypto'
 import { and, eq } from 'drizzle-orm'
 import type { Queue } from 'bullmq'
 import type { Db } from '../../server/db/client'
 import * as t from '../../server/db/schema'
-import { createFrame, queueFrame } from '../../server/lib/frames'
-import type { Storage } from '../../server/lib/storage'
+import { contentTypeOf, createFrame, queueFrame } from '../../server/lib/frames'
+import { keys, type Storage } from '../../server/lib/storage'
 import type { AnalyseJob } from '../../shared/utils/queues'
 import { framesToTimecode, timecodeToFrames } from '../../shared/utils/timecode'
 import { presignGet } from './keys'
@@ -65,8 +66,14 @@ export async function keepClipFrame(deps: KeepDeps, clip: ClipRow, n: number, ki
   const probe = clip.probe as ClipProbe
   const { bytes, format } = await extractFrame(url ?? await presignGet(storage, clip.objectKey), probe, n)
   const tc = clipTimecode(clip, n)
+  // Two frames of a clip with the same picture (black, a hold) are still two places in the
+  // cut, each decided at its own timecode: the key that makes a frame unique in its reel is
+  // the content's hash taken with the clip and frame number, not the pixels alone.
+  const key = createHash('sha256').update(bytes).update(`clip:${clip.id}:${n}`).digest('hex')
+  const storedAt = keys.original(clip.teamId, clip.reelId, key)
+  await storage.put(storedAt, bytes, contentTypeOf(format))
   const { frame } = await createFrame(db, storage, {
-    teamId: clip.teamId, reelId: clip.reelId, name: `${clip.name.slice(0, 200)} ${tc}`, bytes,
+    teamId: clip.teamId, reelId: clip.reelId, name: `${clip.name.slice(0, 200)} ${tc}`, bytes, sha256: key, storedAt,
     inspected: { format, width: probe.width, height: probe.height }, uploadedBy: clip.uploadedBy,
   })
   if (!frame.timecode) await db.update(t.frames).set({ timecode: tc }).where(eq(t.frames.id, frame.id))
