@@ -1,7 +1,7 @@
 // Pure helpers for the clip panel (unit-tested): the chart's series from a decoded timeline,
 // and the next/previous event from a position.
-import { toScale } from '#shared/engine/scales'
-import type { Timeline } from '#shared/utils/clip-timeline'
+import { toScale } from '../../shared/engine/scales'
+import type { Timeline } from '../../shared/utils/clip-timeline'
 
 export interface ClipSeries {
   /** Frame numbers along the horizontal axis. */
