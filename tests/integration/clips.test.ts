@@ -108,6 +108,17 @@ describe('a clip uploaded by script', () => {
     expect(d.status, JSON.stringify(d.body)).toBeLessThan(300)
     const after = (await editor.get(`/api/clips/${up.body.clip.id}`)).body
     expect(after.events[0]).toMatchObject({ decision: 'waived', note: 'flash frame, agreed with the online editor' })
+    // The pass/fail sheet lists the clip with its start timecode, duration and events.
+    const sheet = (await editor.get(`/api/reels/${reelId}/sheet`)).body
+    const onSheet = sheet.clips.find((c: any) => c.id === up.body.clip.id)
+    expect(onSheet).toMatchObject({ startTimecode: '01:00:00:00', frames: 100, durationS: 4 })
+    expect(onSheet.events.map((e: any) => [e.tcIn, e.tcOut, e.decision, e.note])).toEqual([
+      ['01:00:01:05', '01:00:01:14', 'waived', 'flash frame, agreed with the online editor'],
+      ['01:00:02:20', '01:00:02:24', null, ''],
+    ])
+    // 250 → 106.3 IRE, 5 → 2.9 IRE (computed above, BT.601 coding on the setup scale).
+    expect(onSheet.events[0].limits[0]).toMatch(/106\.3 IRE/)
+    expect(onSheet.events[1].limits[0]).toMatch(/2\.9 IRE/)
     // A frame that was not kept is extracted on demand.
     const ask = await editor.post(`/api/clips/${up.body.clip.id}/frames`, { frame: 55 })
     expect(ask.status).toBe(202)
