@@ -88,6 +88,7 @@ let team: Awaited<ReturnType<typeof createTeamWithRoles>>
 let reelId = 0
 let emptyReelId = 0
 let frameId = 0
+let clipId = 0
 let outsider: Awaited<ReturnType<typeof createUser>>
 const clients = new Map<Role | 'outsider', Client>()
 
@@ -102,6 +103,8 @@ beforeAll(async () => {
   emptyReelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel without frames' })).body.id
   const up = await owner.uploadFrames(reelId, [{ name: 'matrix.png', bytes: await png8(64, 36, 4242) }])
   frameId = up.body.files[0]!.frameId!
+  // One announced clip (still uploading) for every case: its routes answer about its state.
+  clipId = (await owner.post(`/api/reels/${reelId}/clip-uploads`, { name: 'matrix.mov', size: 1000 })).body.clipId
   for (let i = 0; i < 200; i++) {
     if ((await owner.get(`/api/frames/${frameId}`)).body.frame.status === 'done') break
     await new Promise((r) => setTimeout(r, 250))
@@ -117,8 +120,7 @@ async function freshCtx(): Promise<Ctx> {
     teamId: team.teamId, email: `pending-${uid()}@test.example`, role: 'editor', tokenHash: uid().padEnd(64, '0'), expiresAt: new Date(Date.now() + 86_400_000),
   }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
-  const clip = await clients.get('owner')!.post(`/api/reels/${reelId}/clip-uploads`, { name: 'matrix.mov', size: 1000 })
-  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, clipId: clip.body.clipId }
+  return { teamId: team.teamId, productionId: team.productionId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, clipId }
 }
 
 async function call(client: Client, r: Route, c: Ctx) {

@@ -179,19 +179,22 @@ describe('presigned parts from the browser', () => {
 })
 
 describe('cancel and a worker killed mid-clip', () => {
-  it('an editor cancels a clip being measured: its chunks stop', async () => {
-    const path = tmp.path('long.mkv')
-    ffmpegRun(['-f', 'lavfi', '-i', 'testsrc2=s=960x540:r=25', '-frames:v', '600', '-pix_fmt', 'yuv422p', '-c:v', 'ffv1', path])
-    const up = await uploadClip(editor, 'long.mkv', readFileSync(path))
+  it('an editor cancels a clip before it is measured: its chunks stop, no events or timeline are written', async () => {
+    const path = tmp.path('long.mov')
+    // 2 000 frames in chunks of 20: a hundred chunk jobs, far more than run before the cancel.
+    greyClipWithRuns(path, { rate: '25', frames: 2000, runs: [{ from: 1900, to: 1910, code10: 1000 }] })
+    const up = await uploadClip(editor, 'long.mov', readFileSync(path))
     expect(up.status).toBe(201)
-    await waitClip(up.body.clip.id, 'measuring')
     const c = await editor.post(`/api/clips/${up.body.clip.id}/cancel`)
     expect(c.status).toBe(200)
     expect(c.body.clip.status).toBe('cancelled')
-    await sleep(3000)
+    await sleep(4000)
     const chunks = await db().select().from(t.clipChunks).where(eq(t.clipChunks.clipId, up.body.clip.id))
-    expect(chunks.filter((x) => x.measured !== null).length).toBeLessThan(chunks.length)
-    expect((await editor.get(`/api/clips/${up.body.clip.id}`)).body.clip.status).toBe('cancelled')
+    expect(chunks.filter((x) => x.measured !== null).length).toBeLessThan(100)
+    const after = (await editor.get(`/api/clips/${up.body.clip.id}`)).body
+    expect(after.clip.status).toBe('cancelled')
+    expect(after.events).toEqual([])
+    expect((await editor.get(`/api/clips/${up.body.clip.id}/timeline`)).status).toBe(409)
     expect((await editor.post(`/api/clips/${up.body.clip.id}/cancel`)).status).toBe(409)
   })
 
