@@ -35,20 +35,23 @@ function signalstats(file: string): number {
   return performance.now() - t0
 }
 function linewise(file: string): { frames: number, wallMs: number, engineCpuMs: number, maxRssMB: number } {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', join(import.meta.dirname, 'clip-measure.ts'), file], { encoding: 'utf8' })
-  if (r.status !== 0) throw new Error(r.stderr)
+  const r = spawnSync(process.execPath, ['--import', 'tsx', join(import.meta.dirname, 'clip-measure.ts'), file], { encoding: 'utf8', maxBuffer: 64 * 2 ** 20 })
+  if (r.status !== 0) throw new Error(`measuring ${file} failed (status ${r.status}, signal ${r.signal}): ${r.stderr || r.error?.message}`)
   return JSON.parse(r.stdout.trim().split('\n').pop()!)
 }
 
 const rows: string[] = []
 for (const [label, file, real] of [['grain 10 s', grain10, 10], ['clean 10 s', clean10, 10], ['grain 60 s', grain60, 60]] as const) {
   let ff = Infinity
-  let lw: ReturnType<typeof linewise> | null = null
+  let lw = { frames: 0, wallMs: Infinity, engineCpuMs: 0, maxRssMB: 0 }
+  let rss = 0
   for (let i = 0; i < RUNS; i++) {
     ff = Math.min(ff, signalstats(file))
     const one = linewise(file)
-    if (!lw || one.wallMs < lw.wallMs) lw = { ...one, maxRssMB: Math.max(one.maxRssMB, lw?.maxRssMB ?? 0) }
+    rss = Math.max(rss, one.maxRssMB)
+    if (one.wallMs < lw.wallMs) lw = one
   }
+  lw.maxRssMB = rss
   const fps = lw!.frames / (lw!.wallMs / 1000)
   rows.push([
     label.padEnd(11), String(lw!.frames).padStart(6), `${(lw!.wallMs / 1000).toFixed(1)} s`.padStart(9), `${(ff / 1000).toFixed(1)} s`.padStart(9),

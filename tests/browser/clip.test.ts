@@ -81,10 +81,10 @@ describe('a clip from upload to a waived event', () => {
     await page.setViewportSize({ width: 1440, height: 900 })
   })
 
-  it('steps to the event with the keyboard, opens its frame\'s scopes and waives it with a note', async () => {
+  it('steps to the event with the keyboard, clicks it open to its frame\'s scopes and waives it with a note', async () => {
     await page.keyboard.press('n')
     await expect.poll(() => page.getByTestId('clip-event-1').getAttribute('aria-current')).toBe('true')
-    await page.keyboard.press('Enter')
+    await page.getByTestId('clip-event-1').click()
     await page.waitForURL((u) => /^\/frames\/\d+$/.test(u.pathname))
     await page.getByTestId('waveform-images').waitFor({ timeout: 60_000 })
     await page.getByTestId('vectorscope-image').waitFor()

@@ -56,7 +56,8 @@ export async function processClipProbe(clipId: number, deps: ClipDeps) {
   const { db, storage } = deps
   const clip = await loadClip(db, clipId)
   if (!clip || (clip.status !== 'queued' && clip.status !== 'probing')) return { status: 'skipped' }
-  await db.update(t.clips).set({ status: 'probing' }).where(eq(t.clips.id, clipId))
+  // Every status change is conditional: a cancel that lands meanwhile is never overwritten.
+  await db.update(t.clips).set({ status: 'probing' }).where(and(eq(t.clips.id, clipId), inArray(t.clips.status, ['queued', 'probing'])))
   let probe: ClipProbe
   try {
     probe = await probeClip(await presignGet(storage, clip.objectKey), clip.bytes)
@@ -72,16 +73,19 @@ export async function processClipProbe(clipId: number, deps: ClipDeps) {
   const { spec, version } = await specForProduction(db, reel.productionId)
   const fps = probe.rate.num / probe.rate.den
   const chunks = planChunks(probe.frameCount, deps.chunkFrames ?? Math.round(CHUNK_SECONDS * fps))
-  await db.transaction(async (tx) => {
-    await tx.update(t.clips).set({
+  const planned = await db.transaction(async (tx) => {
+    const [res] = await tx.update(t.clips).set({
       status: 'measuring', probe, width: probe.width, height: probe.height, fpsNum: probe.rate.num, fpsDen: probe.rate.den,
       dropFrame: probe.dropFrame, startTimecode: probe.startTimecode, startTimecodeFound: probe.startTimecodeFound,
       frameCount: probe.frameCount, specName: spec.name, specVersion: version, engineVersion: ENGINE_VERSION,
       measureStartedAt: new Date(),
-    }).where(eq(t.clips.id, clipId))
+    }).where(and(eq(t.clips.id, clipId), eq(t.clips.status, 'probing')))
+    if (res.affectedRows !== 1) return false
     await tx.insert(t.clipChunks).values(chunks.map((c) => ({ clipId, teamId: clip.teamId, idx: c.index, startFrame: c.start, frameCount: c.count })))
       .onDuplicateKeyUpdate({ set: { clipId } })
+    return true
   })
+  if (!planned) return { status: 'skipped' }
   await deps.flow.add({
     name: 'merge', queueName: QUEUE_CLIP, data: { kind: 'merge', clipId } satisfies ClipJob,
     opts: { jobId: clipMergeJobId(clipId, 1), ...DEFAULT_JOB_OPTIONS },
@@ -138,7 +142,7 @@ export async function processClipMerge(clipId: number, deps: ClipDeps) {
     await failClip(db, clipId, `Frames ${lost.startFrame}–${lost.startFrame + lost.frameCount - 1} could not be measured${lost.error ? `: ${lost.error}` : ''}`)
     return { status: 'failed' }
   }
-  await db.update(t.clips).set({ status: 'merging' }).where(eq(t.clips.id, clipId))
+  await db.update(t.clips).set({ status: 'merging' }).where(and(eq(t.clips.id, clipId), eq(t.clips.status, 'measuring')))
   const probe = clip.probe as ClipProbe
   const whole = emptyTimeline(probe.frameCount)
   let total = 0
