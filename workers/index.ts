@@ -13,6 +13,7 @@ import { workerEnv } from './env'
 import { processMail } from './mail'
 import { startSheetWorker } from './sheet-worker'
 import { msFromEnv, queueMissingViews, sweep, SWEEP } from './sweeper'
+import { startClipWorkers } from './clips/wire'
 
 const env = workerEnv()
 const concurrency = env.concurrency ?? availableParallelism()
@@ -29,13 +30,15 @@ const analyseQueue = new Queue<AnalyseJob>(QUEUE_ANALYSE, { connection, defaultJ
 analyseQueue.on('error', (e) => console.error('[worker] queue', e.message))
 
 const sheets = startSheetWorker(connection, env.databaseUrl)
-const workers = [
+const workers: Worker[] = [
   new Worker<MailJob>(QUEUE_MAIL, (job) => processMail(job, transport, env.mailFrom), { connection, concurrency: 4 }),
   sheets.worker,
   new Worker<AnalyseJob>(QUEUE_ANALYSE, new URL('./analyse-sandbox.mjs', import.meta.url), {
     connection, concurrency, lockDuration, stalledInterval, useWorkerThreads: true,
   }),
 ]
+const clips = startClipWorkers(connection, db, { lockDuration, stalledInterval, sweepMs: SWEEP.queuedAfterMs })
+workers.push(...clips.workers)
 for (const w of workers) {
   w.on('error', (e) => console.error(`[worker ${w.name}]`, e.message))
   w.on('failed', (job, e) => console.error(`[worker ${w.name}] job ${job?.id} failed (attempt ${job?.attemptsMade}):`, e.message))
@@ -56,6 +59,7 @@ async function shutdown(signal: string) {
   console.log(`[worker] ${signal}: finishing current jobs`)
   clearInterval(sweepTimer)
   await Promise.all(workers.map((w) => w.close()))
+  await clips.close()
   await analyseQueue.close()
   transport.close()
   await pool.end()

@@ -8,6 +8,7 @@ import PDFDocument from 'pdfkit'
 import { SCALE_LABELS, SCALE_LIMIT_UNITS, vectorscopeMarks, waveformScaleMarks, type DeliverySpec, type LevelScale } from '../shared/engine'
 import { DECISION_LABELS } from '../shared/utils/decisions'
 import { OVERALL_LABELS, framesWithScopes, type SheetRow, type SheetSummary } from '../server/lib/sheet-rules'
+import type { SheetClip } from '../server/lib/sheet-clips'
 
 const require = createRequire(import.meta.url)
 // The app's own font files (from @fontsource, already shipped for the web pages): pdfkit
@@ -59,6 +60,8 @@ export interface SheetInput {
   rows: SheetRow[]
   summary: SheetSummary
   images: SheetImages
+  /** The reel's clips with their events (server/lib/sheet-clips.ts). */
+  clips?: SheetClip[]
 }
 
 /** Numbers with a plain hyphen-minus, so a reader's search for "-3.2" finds them. */
@@ -97,6 +100,7 @@ export async function renderSheetPdf(input: SheetInput): Promise<Buffer> {
   specSection(doc, input, left, width, bottom)
   await framesTable(doc, input, left, width, bottom)
   lineupSection(doc, input, left, width, bottom)
+  clipsSection(doc, input, left, width, bottom)
   await scopePages(doc, input)
   footers(doc, input)
   doc.end()
@@ -450,5 +454,52 @@ function footers(doc: Doc, input: SheetInput) {
       left, y, { width: width - 70, height: 9, lineBreak: false, ellipsis: true })
     doc.text(`page ${i - range.start + 1} of ${range.count}`, left + width - 70, y, { width: 70, align: 'right', lineBreak: false })
     doc.page.margins.bottom = margin
+  }
+}
+
+/** Each clip: duration, start timecode, and its events with timecode in/out, limits, worst values, decision and note. */
+function clipsSection(doc: Doc, input: SheetInput, left: number, width: number, bottom: () => number) {
+  const clips = input.clips ?? []
+  if (!clips.length) return
+  doc.addPage()
+  heading(doc, `Clips (${clips.length})`, left, width)
+  const cols = [70, 70, 40, 48, 0, 60, 150]
+  const fixed = cols.reduce((a, b) => a + b, 0)
+  const widths = cols.map((w) => w || width - fixed)
+  const xs = widths.reduce<number[]>((acc, _w, i) => [...acc, i ? acc[i - 1]! + widths[i - 1]! : left], [])
+  const titles = ['TC in', 'TC out', 'frames', 'verdict', 'limits broken (worst value)', 'decision', 'note']
+  for (const c of clips) {
+    if (doc.y + 60 > bottom()) doc.addPage()
+    const dur = c.durationS !== null ? `${fmt(c.durationS, 2)} s` : '—'
+    doc.font('bold').fontSize(10).fillColor(INK).text(c.name, left, doc.y, { width })
+    doc.font('regular').fontSize(8).fillColor(MUTED).text([
+      `starts ${c.startTimecode ?? '—'}${c.startTimecodeFound ? '' : ' (no timecode in the file; counted from 00:00:00:00)'}`,
+      `${c.frames ?? '—'} frames, ${dur}${c.fps ? ` at ${fmt(c.fps, 3)} fps${c.dropFrame ? ' drop-frame' : ''}` : ''}`,
+      c.status === 'done' ? `${c.events.length} event(s)` : `not measured: ${c.failReason ?? c.status}`,
+    ].join(' · '), left, doc.y + 1, { width })
+    if (c.note) doc.font('regular').fontSize(8).fillColor(TONE.caution).text(c.note, left, doc.y + 1, { width })
+    doc.y += 4
+    if (!c.events.length) { doc.y += 6; continue }
+    let y = doc.y
+    const header = () => {
+      doc.rect(left, y, width, 16).fill('#eef1f3')
+      titles.forEach((t, i) => doc.font('bold').fontSize(7.5).fillColor(INK).text(t, xs[i]! + 3, y + 4, { width: widths[i]! - 6 }))
+      y += 16
+    }
+    header()
+    for (const e of c.events) {
+      const limits = e.limits.join('; ')
+      const h = Math.max(16, doc.font('regular').fontSize(8).heightOfString(limits, { width: widths[4]! - 6 }) + 6,
+        doc.heightOfString(e.note || ' ', { width: widths[6]! - 6 }) + 6)
+      if (y + h > bottom()) { doc.addPage(); y = doc.page.margins.top; header() }
+      const cells = [e.tcIn, e.tcOut, String(e.frames), e.verdict, limits, e.decision ?? 'undecided', e.note]
+      cells.forEach((text, i) => {
+        doc.font(i < 3 ? 'mono' : 'regular').fontSize(8).fillColor(i === 3 ? TONE[e.verdict] : INK).text(text, xs[i]! + 3, y + 3, { width: widths[i]! - 6 })
+      })
+      doc.moveTo(left, y + h).lineTo(left + width, y + h).lineWidth(0.4).strokeColor(RULE).stroke()
+      y += h
+    }
+    doc.y = y + 10
+    doc.x = left
   }
 }

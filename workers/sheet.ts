@@ -9,6 +9,7 @@ import type { SheetJob } from '../shared/utils/queues'
 import type { Db } from '../server/db/client'
 import * as t from '../server/db/schema'
 import { loadSheetContext, sheetKeys } from '../server/lib/sheet'
+import { loadSheetClips } from '../server/lib/sheet-clips'
 import { CSV_COLUMNS, CSV_NUMBER_COLUMNS, csvRecord, summarise, type SheetRow } from '../server/lib/sheet-rules'
 import { keys, type Storage } from '../server/lib/storage'
 import { renderSheetPdf, type ScopeKind } from './sheet-pdf'
@@ -82,6 +83,7 @@ export async function processSheet(job: SheetJobLike, deps: SheetDeps): Promise<
         engineVersion: signoff.engineVersion,
       },
       images: { thumb: (id) => image(id, 'thumb'), scope: image, picture },
+      clips: await loadSheetClips(db, reel.id),
     })
     const pdfKey = sheetKeys.pdf(reel.teamId, reel.id, signoff.id)
     const csvKey = sheetKeys.csv(reel.teamId, reel.id, signoff.id)

@@ -11,6 +11,7 @@ import type { AnalysisJson, HistogramsJson } from '../../shared/utils/report'
 import type { PackedLevels } from '../../shared/engine/pack'
 import type { SheetSummary } from '../lib/sheet-rules'
 import { FRAME_RATE_NAMES, type FrameRateName } from '../../shared/utils/timecode'
+import { CLIP_STATUSES } from '../../shared/utils/clips'
 
 // MariaDB rejects drizzle's serial(); every key is an unsigned auto-increment bigint.
 const id = () => bigint('id', { mode: 'number', unsigned: true }).autoincrement().primaryKey()
@@ -305,3 +306,92 @@ export const barsReferences = mysqlTable('bars_references', {
   setBy: ref('set_by').references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
 }, (t) => [uniqueIndex('bars_references_production_uq').on(t.productionId), index('bars_references_frame_idx').on(t.frameId)])
+
+ * An uploaded video file. Every frame is measured into a timeline (one binary object in S3,
+ * `timelineKey`) and the runs beyond the spec become `clip_events`; the kept frames (worst
+ * of each event, filmstrip, asked for) are ordinary frames of the reel (`clip_frames`).
+ */
+export const clips = mysqlTable('clips', {
+  id: id(),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  reelId: ref('reel_id').notNull().references(() => reels.id, { onDelete: 'cascade' }),
+  name: varchar('name', { length: 255 }).notNull(),
+  objectKey: varchar('object_key', { length: 255 }).notNull(),
+  bytes: bigint('bytes', { mode: 'number', unsigned: true }).notNull(),
+  /** While the browser sends parts: the S3 multipart id and when the part URLs run out. */
+  multipartId: varchar('multipart_id', { length: 255 }),
+  uploadExpiresAt: datetime('upload_expires_at', { mode: 'date' }),
+  status: mysqlEnum('status', CLIP_STATUSES).notNull().default('uploading'),
+  failReason: varchar('fail_reason', { length: 500 }),
+  /** What ffprobe found (ClipProbe in workers/clips/probe.ts). */
+  probe: json('probe'),
+  width: int('width'),
+  height: int('height'),
+  fpsNum: int('fps_num'),
+  fpsDen: int('fps_den'),
+  dropFrame: boolean('drop_frame').notNull().default(false),
+  /** The label of frame 0; `startTimecodeFound` false when the file carries none (00:00:00:00 assumed). */
+  startTimecode: varchar('start_timecode', { length: 16 }),
+  startTimecodeFound: boolean('start_timecode_found').notNull().default(false),
+  /** Frames the probe expects, and frames actually measured (fewer when the file breaks off). */
+  frameCount: int('frame_count'),
+  framesMeasured: int('frames_measured'),
+  truncated: boolean('truncated').notNull().default(false),
+  note: varchar('note', { length: 500 }),
+  timelineKey: varchar('timeline_key', { length: 255 }),
+  specName: varchar('spec_name', { length: 64 }),
+  specVersion: int('spec_version'),
+  engineVersion: varchar('engine_version', { length: 32 }),
+  measureStartedAt: datetime('measure_started_at', { mode: 'date', fsp: 3 }),
+  measuredAt: datetime('measured_at', { mode: 'date', fsp: 3 }),
+  /** Outbox for the probe job, as frames.queued_at is for analysis. */
+  queuedAt: datetime('queued_at', { mode: 'date', fsp: 3 }),
+  uploadedBy: ref('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [index('clips_reel_idx').on(t.reelId), index('clips_team_idx').on(t.teamId), index('clips_status_idx').on(t.status, t.queuedAt)])
+
+/** One time chunk of a clip, measured by any worker; its part of the timeline is in S3 once `measured` is set. */
+export const clipChunks = mysqlTable('clip_chunks', {
+  id: id(),
+  clipId: ref('clip_id').notNull().references(() => clips.id, { onDelete: 'cascade' }),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  idx: int('idx').notNull(),
+  startFrame: int('start_frame').notNull(),
+  frameCount: int('frame_count').notNull(),
+  framesDone: int('frames_done').notNull().default(0),
+  /** Frames the chunk measured (null until it finished); fewer than frame_count where the file broke off. */
+  measured: int('measured'),
+  error: varchar('error', { length: 500 }),
+  ...timestamps,
+}, (t) => [uniqueIndex('clip_chunks_clip_idx_uq').on(t.clipId, t.idx)])
+
+/** A run of a clip's frames beyond the spec; decided through its worst frame (`frame_id`). */
+export const clipEvents = mysqlTable('clip_events', {
+  id: id(),
+  clipId: ref('clip_id').notNull().references(() => clips.id, { onDelete: 'cascade' }),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  seq: int('seq').notNull(),
+  startFrame: int('start_frame').notNull(),
+  endFrame: int('end_frame').notNull(),
+  tcIn: varchar('tc_in', { length: 16 }).notNull(),
+  tcOut: varchar('tc_out', { length: 16 }).notNull(),
+  verdict: mysqlEnum('verdict', ['caution', 'fail']).notNull(),
+  /** LimitWorst[] (shared/utils/clip-timeline.ts). */
+  limits: json('limits').notNull(),
+  worstFrame: int('worst_frame').notNull(),
+  frameId: ref('frame_id').references(() => frames.id, { onDelete: 'set null' }),
+  ...timestamps,
+}, (t) => [uniqueIndex('clip_events_clip_seq_uq').on(t.clipId, t.seq), index('clip_events_frame_idx').on(t.frameId)])
+
+export const CLIP_FRAME_KINDS = ['event', 'filmstrip', 'asked'] as const
+
+/** A frame of a clip kept as a frame of the reel (full scopes, decisions, sheet). */
+export const clipFrames = mysqlTable('clip_frames', {
+  id: id(),
+  clipId: ref('clip_id').notNull().references(() => clips.id, { onDelete: 'cascade' }),
+  teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
+  frameNumber: int('frame_number').notNull(),
+  frameId: ref('frame_id').notNull().references(() => frames.id, { onDelete: 'cascade' }),
+  kind: mysqlEnum('kind', CLIP_FRAME_KINDS).notNull(),
+  ...timestamps,
+}, (t) => [uniqueIndex('clip_frames_clip_frame_uq').on(t.clipId, t.frameNumber), index('clip_frames_frame_idx').on(t.frameId)])

@@ -13,3 +13,5 @@ export type AuditRow = typeof s.auditLog.$inferSelect
 
 /** A user as the API shows it: never the password hash. */
 export type PublicUser = Pick<UserRow, 'id' | 'email' | 'name'>
+export type ClipRow = typeof s.clips.$inferSelect
+export type ClipEventRow = typeof s.clipEvents.$inferSelect

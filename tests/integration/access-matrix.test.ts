@@ -14,7 +14,7 @@ import { addMember, closeDb, createTeamWithRoles, createUser, db, uid } from '..
 import { linkIn, waitForMail } from '../support/mail'
 import { png8 } from '../support/images'
 
-type Ctx = { teamId: number; productionId: number; specId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; tokenId: number; callerRole: Role }
+type Ctx = { teamId: number; productionId: number; specId: number; spareUserId: number; invitationId: number; reelId: number; frameId: number; uploadId: number; emptyReelId: number; clipId: number; tokenId: number; callerRole: Role }
 interface Route {
   method: 'GET' | 'POST' | 'PATCH' | 'PUT' | 'DELETE'
   /** The allowed answer may be a 404 about the target's state (checked to carry its own message). */
@@ -73,6 +73,17 @@ const ROUTES: Route[] = [
   // The matrix frame is a picture, not bars: an allowed role gets 422 "not recognised as colour bars".
   { method: 'PUT', file: 'productions/[id]/reference.put.ts', path: (c) => `/api/productions/${c.productionId}/reference`, body: (c) => ({ frameId: c.frameId }), permission: 'decide' },
   { method: 'DELETE', file: 'productions/[id]/reference.delete.ts', path: (c) => `/api/productions/${c.productionId}/reference`, permission: 'decide' },
+  // Clips: the clip of each case is freshly announced (still uploading), so allowed roles get
+  // 409/422 about its state from the routes that need a measured or stored clip.
+  { method: 'GET', file: 'reels/[id]/clips.get.ts', path: (c) => `/api/reels/${c.reelId}/clips`, permission: 'view' },
+  // JSON instead of multipart: an allowed role gets 400 "send the clip…".
+  { method: 'POST', file: 'reels/[id]/clips.post.ts', path: (c) => `/api/reels/${c.reelId}/clips`, permission: 'upload' },
+  { method: 'POST', file: 'reels/[id]/clip-uploads.post.ts', path: (c) => `/api/reels/${c.reelId}/clip-uploads`, body: () => ({ name: 'cut.mov', size: 1000 }), permission: 'upload' },
+  { method: 'POST', file: 'clips/[id]/complete.post.ts', path: (c) => `/api/clips/${c.clipId}/complete`, body: () => ({ parts: [{ partNumber: 1, etag: '"none"' }] }), permission: 'upload' },
+  { method: 'GET', file: 'clips/[id]/index.get.ts', path: (c) => `/api/clips/${c.clipId}`, permission: 'view' },
+  { method: 'GET', file: 'clips/[id]/timeline.get.ts', path: (c) => `/api/clips/${c.clipId}/timeline`, permission: 'view' },
+  { method: 'POST', file: 'clips/[id]/cancel.post.ts', path: (c) => `/api/clips/${c.clipId}/cancel`, permission: 'upload' },
+  { method: 'POST', file: 'clips/[id]/frames.post.ts', path: (c) => `/api/clips/${c.clipId}/frames`, body: () => ({ frame: 0 }), permission: 'view' },
   { method: 'POST', file: 'reels/[id]/reopen.post.ts', path: (c) => `/api/reels/${c.emptyReelId}/reopen`, body: () => ({ reason: 'access matrix' }), permission: 'reopen' },
   // Sign out everywhere ends the caller's own sessions: run on a throwaway session of the same person (see call()).
   { method: 'DELETE', file: 'auth/sessions.delete.ts', path: () => '/api/auth/sessions', permission: null, sessionOnly: true },
@@ -101,6 +112,7 @@ let team: Awaited<ReturnType<typeof createTeamWithRoles>>
 let reelId = 0
 let emptyReelId = 0
 let frameId = 0
+let clipId = 0
 let outsider: Awaited<ReturnType<typeof createUser>>
 type Caller = Role | 'outsider' | `token:${Role}`
 const clients = new Map<Caller, Client>()
@@ -137,6 +149,8 @@ beforeAll(async () => {
   emptyReelId = (await owner.post(`/api/productions/${team.productionId}/reels`, { name: 'Matrix reel without frames' })).body.id
   const up = await owner.uploadFrames(reelId, [{ name: 'matrix.png', bytes: await png8(64, 36, 4242) }])
   frameId = up.body.files[0]!.frameId!
+  // One announced clip (still uploading) for every case: its routes answer about its state.
+  clipId = (await owner.post(`/api/reels/${reelId}/clip-uploads`, { name: 'matrix.mov', size: 1000 })).body.clipId
   for (let i = 0; i < 200; i++) {
     if ((await owner.get(`/api/frames/${frameId}`)).body.frame.status === 'done') break
     await new Promise((r) => setTimeout(r, 250))
@@ -153,7 +167,7 @@ async function freshCtx(caller?: { id: number }, callerRole: Role = 'owner'): Pr
   }).$returningId())
   const announced = await clients.get('owner')!.post(`/api/reels/${reelId}/uploads`, { files: [{ name: 'pending.png', size: 1000, format: 'png' }] })
   const tokenId = (await tokenFor(team.teamId, caller?.id ?? team.users.owner.id, 'producer')).id
-  return { teamId: team.teamId, productionId: team.productionId, specId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, tokenId, callerRole }
+  return { teamId: team.teamId, productionId: team.productionId, specId, spareUserId: spare.id, invitationId, reelId, frameId, uploadId: announced.body.files[0].uploadId, emptyReelId, clipId, tokenId, callerRole }
 }
 
 async function call(client: Client, r: Route, c: Ctx, who?: { email: string; password: string }) {

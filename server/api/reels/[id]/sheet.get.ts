@@ -4,6 +4,7 @@ import { can } from '../../../../shared/utils/roles'
 import { currentSignoff, loadSheetRows, signoffHistory } from '../../../lib/sheet'
 import { signoffBlockers, summarise } from '../../../lib/sheet-rules'
 import { specForProduction } from '../../../lib/specs'
+import { clipBlockers, loadSheetClips } from '../../../lib/sheet-clips'
 
 /**
  * What the sheet page shows: the rows and summary as they stand, what (if anything) blocks a
@@ -21,6 +22,7 @@ export default defineEventHandler(async (event) => {
   const current = await currentSignoff(db, reel.id)
   const { spec, version } = await specForProduction(db, reel.productionId)
   const history = await signoffHistory(db, reel.id)
+  const clips = await loadSheetClips(db, reel.id)
   return {
     reel: { id: reel.id, name: reel.name, sourceLabel: reel.sourceLabel, sourceRange: reel.sourceRange, matrix: reel.matrix, signedAt: reel.signedAt },
     production,
@@ -30,7 +32,8 @@ export default defineEventHandler(async (event) => {
     spec: current
       ? { name: current.specName, title: current.specTitle, version: current.specVersion, description: current.specBody.description, limits: current.specBody.limits }
       : { name: spec.name, title: spec.title, version, description: spec.description, limits: spec.limits },
-    blockers: reel.signedAt ? [] : signoffBlockers(rows),
+    blockers: reel.signedAt ? [] : [...signoffBlockers(rows), ...clipBlockers(clips)],
+    clips,
     summary: summarise(rows),
     rows: rows.map((r) => ({ ...r, thumbUrl: r.status === 'done' ? `/api/frames/${r.frameId}/images/thumb` : null })),
     signoff: current

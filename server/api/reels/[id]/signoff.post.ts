@@ -4,7 +4,8 @@ import { IdParams } from '../../../../shared/utils/validation'
 import { QUEUE_SHEET, sheetJobId, type SheetJob } from '../../../../shared/utils/queues'
 import { producersOf, signoffMailText } from '../../../lib/notices'
 import { loadSheetRows } from '../../../lib/sheet'
-import { signoffBlockers, summarise } from '../../../lib/sheet-rules'
+import { OVERALL_LABELS, signoffBlockers, summarise } from '../../../lib/sheet-rules'
+import { clipBlockers, loadSheetClips } from '../../../lib/sheet-clips'
 import { specForProduction } from '../../../lib/specs'
 
 /**
@@ -25,7 +26,7 @@ export default defineEventHandler(async (event) => {
       throw createError({ statusCode: 409, statusMessage: `This reel is already signed off${by ? ` by ${by.name}` : ''} (${locked.signedAt.toISOString().slice(0, 16).replace('T', ' ')} UTC)` })
     }
     const rows = await loadSheetRows(tx, reel.id)
-    const blockers = signoffBlockers(rows)
+    const blockers = [...signoffBlockers(rows), ...clipBlockers(await loadSheetClips(tx, reel.id))]
     if (blockers.length) {
       throw createError({ statusCode: 409, statusMessage: `This reel cannot be signed off yet: ${blockers.map((b) => b.message).join('; ')}`, data: { blockers } })
     }
