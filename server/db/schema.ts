@@ -278,6 +278,8 @@ export const apiTokens = mysqlTable('api_tokens', {
   revokedAt: datetime('revoked_at', { mode: 'date', fsp: 3 }),
   ...timestamps,
 }, (t) => [uniqueIndex('api_tokens_token_uq').on(t.tokenHash), index('api_tokens_team_user_idx').on(t.teamId, t.userId)])
+
+/**
  * Every saved version of a team's delivery spec, as it was; delivery_specs holds the current one.
  * Analyses and sign-offs name the version they were judged against.
  */
@@ -295,6 +297,7 @@ export const deliverySpecVersions = mysqlTable('delivery_spec_versions', {
   createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
 }, (t) => [uniqueIndex('delivery_spec_versions_uq').on(t.specId, t.version), index('delivery_spec_versions_team_idx').on(t.teamId)])
 
+/**
  * The production's reference source for matching: one bars frame the other sources' bars are
  * compared with (level offset, gain ratio, chroma gain, hue offset). One per production.
  */
@@ -307,6 +310,7 @@ export const barsReferences = mysqlTable('bars_references', {
   ...timestamps,
 }, (t) => [uniqueIndex('bars_references_production_uq').on(t.productionId), index('bars_references_frame_idx').on(t.frameId)])
 
+/**
  * An uploaded video file. Every frame is measured into a timeline (one binary object in S3,
  * `timelineKey`) and the runs beyond the spec become `clip_events`; the kept frames (worst
  * of each event, filmstrip, asked for) are ordinary frames of the reel (`clip_frames`).
