@@ -55,7 +55,7 @@ async function storeViews({ db, storage }: AnalyseDeps, stored: StoredFrame, had
 }
 
 export async function processAnalyse(job: JobLike, deps: AnalyseDeps): Promise<{ status: 'done' | 'skipped' }> {
-  const { db, storage } = deps
+  const { db } = deps
   const { frameId } = job.data
   const stored = await loadStoredFrame(db, frameId)
   if (!stored) return { status: 'skipped' } // deleted since it was queued

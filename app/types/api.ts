@@ -18,7 +18,7 @@ export type PendingInvitation = ApiGet<'/api/teams/:teamId/invitations'>[number]
 export type SheetPage = ApiGet<'/api/reels/:id/sheet'>
 export type ApiTokenRow = ApiGet<'/api/teams/:teamId/tokens'>[number]
 export type ReelSheetState = ReelDetail['sheet']
-export type SpecListRow = ApiGet<'/api/teams/:teamId/specs'>[number]
+export type SpecListRow = ApiGet<'/api/teams/:teamId/specs'>['specs'][number]
 export type SpecDetail = ApiGet<'/api/specs/:id'>
 
 /** What re-judging would change (or changed): the answer of a preview or an apply. */

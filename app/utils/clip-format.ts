@@ -1,10 +1,3 @@
-export function formatBytes(n: number): string {
-  if (n >= 2 ** 30) return `${(n / 2 ** 30).toFixed(2)} GiB`
-  if (n >= 2 ** 20) return `${(n / 2 ** 20).toFixed(1)} MiB`
-  if (n >= 1024) return `${(n / 1024).toFixed(0)} KiB`
-  return `${n} B`
-}
-
 /** 75.2 → "1 min 15 s"; 4 → "4.0 s". */
 export function formatDuration(s: number): string {
   if (s < 60) return `${s.toFixed(1)} s`

@@ -3,10 +3,10 @@
 //   [--raw uyvy|v210 --width W --height H] [--spec NAME] [--line N] [--reference FILE] [--json]
 import { parseArgs } from 'node:util'
 import {
-  analyseFrame, barsTolerancesFor, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, ENGINE_VERSION, EngineInputError, formatShare,
+  analyseFrame, barsTolerancesFor, BUILTIN_SPECS, builtinSpec, DEFAULT_SPEC_NAME, EngineInputError, formatShare,
   LEVEL_SCALES, linePlot, MV_CONVENTION, SCALE_SHORT, toScale,
 } from '../../shared/engine/index'
-import type { FrameAnalysis, LevelScale, LinePlot, MatrixName, SourceRange } from '../../shared/engine/index'
+import type { FrameAnalysis, LinePlot, MatrixName, SourceRange } from '../../shared/engine/index'
 import { analysisJson, lineJson } from '../../shared/utils/report'
 import { applyMatch, measureLineup, withLineup } from '../../shared/utils/lineup'
 import type { LineupAnalysisJson } from '../../shared/utils/lineup'

@@ -9,6 +9,7 @@ import type { DeliverySpec } from '../../shared/engine/specs'
 import type { FrameImageKind } from '../../shared/utils/frame-images'
 import type { AnalysisJson, HistogramsJson } from '../../shared/utils/report'
 import type { PackedLevels } from '../../shared/engine/pack'
+import type { LineupAnalysisJson } from '../../shared/utils/lineup'
 import type { SheetSummary } from '../lib/sheet-rules'
 import { FRAME_RATE_NAMES, type FrameRateName } from '../../shared/utils/timecode'
 import { CLIP_STATUSES } from '../../shared/utils/clips'
@@ -190,7 +191,8 @@ export const analyses = mysqlTable('analyses', {
   matrix: mysqlEnum('matrix', ['601', '709']),
   sourceRange: mysqlEnum('source_range', ['full', 'studio']),
   /** The engine's JSON result (same field names as `npm run analyse -- --json`), without pixel data. */
-  result: json('result').$type<AnalysisJson>().notNull(),
+  /** The analysis JSON; analyses stored before engine 1.2.0 have no line-up objects. */
+  result: json('result').$type<AnalysisJson & Partial<Pick<LineupAnalysisJson, 'bars' | 'blanking' | 'match'>>>().notNull(),
   histograms: json('histograms').$type<HistogramsJson>().notNull(),
   /** The images stored for the frame (served as /api/frames/:id/images/:kind). */
   /** Packed level distributions (shared/engine/pack.ts): a changed spec is judged again from these. Null before they were kept. */
@@ -288,11 +290,11 @@ export const deliverySpecVersions = mysqlTable('delivery_spec_versions', {
   teamId: ref('team_id').notNull().references(() => teams.id, { onDelete: 'cascade' }),
   specId: ref('spec_id').notNull().references(() => deliverySpecs.id, { onDelete: 'cascade' }),
   version: int('version').notNull(),
-  body: json('body').notNull(),
+  body: json('body').$type<DeliverySpec>().notNull(),
   /** What changed from the previous version, in words (shared/utils/specs.ts describeSpecChanges). */
-  changes: json('changes').notNull(),
+  changes: json('changes').$type<string[]>().notNull(),
   /** What re-judging changed when this version was applied: counts by transition. */
-  rejudge: json('rejudge'),
+  rejudge: json('rejudge').$type<{ judged: number, changed: number, text: string, skippedSigned: number }>(),
   createdBy: ref('created_by').references(() => users.id, { onDelete: 'set null' }),
   createdAt: timestamp('created_at', { mode: 'date', fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`),
 }, (t) => [uniqueIndex('delivery_spec_versions_uq').on(t.specId, t.version), index('delivery_spec_versions_team_idx').on(t.teamId)])

@@ -4,7 +4,6 @@
 import { and, asc, desc, eq, isNull } from 'drizzle-orm'
 import type { Db, DbOrTx } from '../db/client'
 import * as t from '../db/schema'
-import type { AnalysisJson } from '../../shared/utils/report'
 import { decisionHistory } from './decisions'
 import {
   signoffBlockers, summarise, type HistoryStep, type Overall, type SheetReason, type SheetRow, type SheetSummary,

@@ -44,4 +44,4 @@ export function htmlDocument(title: string, body: string): string {
   return asciiOnly(`<!doctype html><html lang="en"><head><meta charset="utf-8"><meta http-equiv="Content-Type" content="text/html; charset=utf-8"><title>${escape(title)}</title></head><body>${body}</body></html>`)
 }
 
-const asciiOnly = (html: string) => html.replace(/[^\x00-\x7f]/gu, (c) => `&#${c.codePointAt(0)};`)
+const asciiOnly = (html: string) => html.replace(/[\u0080-\u{10ffff}]/gu, (c) => `&#${c.codePointAt(0)};`)

@@ -1,5 +1,5 @@
 import type { H3Event } from 'h3'
-import { RateLimiterMemory, RateLimiterRedis, type RateLimiterRes } from 'rate-limiter-flexible'
+import { RateLimiterMemory, RateLimiterRedis, RateLimiterRes } from 'rate-limiter-flexible'
 
 // Failed sign-ins: 5 per account+address in 15 minutes, 50 per address in an hour.
 // Counted in Redis so that every server process shares them; in memory if Redis is down.

@@ -9,8 +9,7 @@
 import { DEFAULT_BARS_TOLERANCES } from './bars-tolerances'
 import type { BarsTolerances } from './bars-tolerances'
 import { makeRowBuffers, makeRowSource } from './decode'
-import { resolveMatrix } from './analyse'
-import { barRgb, MATRICES, rgbToYPbPr, U_WEIGHT, V_WEIGHT } from './matrix'
+import { barRgb, MATRICES, resolveMatrix, rgbToYPbPr, U_WEIGHT, V_WEIGHT } from './matrix'
 import type { BarName } from './matrix'
 import { code8ToIre, ireToCode8, SETUP_IRE, SETUP_SPAN_IRE } from './scales'
 import type { DeliverySpec } from './specs'
@@ -268,7 +267,6 @@ function expectedColours(amplitude: number, matrix: MatrixName) {
   })
 }
 
-const unitToCode8 = (u: number) => 16 + 219 * u
 const codeToUnit = (c: number) => (c - 16) / 219
 
 /** Measures a frame as colour bars; frames that do not fit a known pattern are not judged. */

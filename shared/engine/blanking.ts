@@ -3,8 +3,8 @@
 // horizontal blanking 10.9 ± 0.2 µs and at most 21 lines of vertical blanking per field
 // (SMPTE 170M, clause numbers from memory); line period from the FCC line rate 15 734.264 Hz
 // (47 CFR §73.682); 13.5 MHz luma sampling (ITU-R BT.601).
+import { resolveMatrix } from './matrix'
 import { makeRowBuffers, makeRowSource } from './decode'
-import { resolveMatrix } from './analyse'
 import type { FrameInput, MatrixName } from './types'
 
 export const SD_SAMPLE_RATE_MHZ = 13.5

@@ -6,6 +6,12 @@ export const LEVEL_MIN = -256
 export const LEVEL_STEP = 0.25
 export const LEVEL_BINS = 3072
 
+/** The quarter-code bin of an 8-bit-equivalent level, clamped to the distribution's ends. */
+export function levelBin(code8: number): number {
+  const i = ((code8 - LEVEL_MIN) * 4 + 0.5) | 0
+  return i < 0 ? 0 : i >= LEVEL_BINS ? LEVEL_BINS - 1 : i
+}
+
 /**
  * Nearest-rank percentile: the smallest level whose cumulative count reaches ⌈p·N⌉ (at least
  * one sample), read as the bin centre.

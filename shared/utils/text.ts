@@ -7,6 +7,8 @@
 /** C0/C1 controls (tab, CR, LF, …): a name is one line, so they become spaces. */
 const CONTROLS = /[\u0000-\u001f\u007f-\u009f\u2028\u2029]/g
 /** Bidi embeddings, overrides and isolates, zero-width characters, word joiner, BOM, soft hyphen. */
+// The list holds lone combining marks on purpose (U+034F): each is stripped on its own.
+// eslint-disable-next-line no-misleading-character-class
 const INVISIBLE = /[\u200b-\u200f\u202a-\u202e\u2060-\u2064\u2066-\u2069\u00ad\u034f\u061c\u115f\u1160\u17b4\u17b5\u180e\u3164\ufeff\uffa0]/g
 /* eslint-enable no-control-regex */
 

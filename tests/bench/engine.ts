@@ -186,7 +186,7 @@ async function makePhotoCase(file: string, width: number, height: number, depth:
       input: { kind: 'rgb', data: new Uint8Array(raw.buffer, raw.byteOffset, raw.length), width, height, channels: 3, bitDepth: 8, range: 'full' },
     }
   }
-  // As workers/lib/decode-file.ts reads 16-bit files: the rgb16 pipeline keeps every code.
+  // As server/lib/decode-file.ts reads 16-bit files: the rgb16 pipeline keeps every code.
   const raw = await img.pipelineColourspace('rgb16').toColourspace('rgb16').raw({ depth: 'ushort' }).toBuffer()
   writeFileSync(rawFile, raw)
   const words = new Uint16Array(raw.buffer, raw.byteOffset, raw.length >> 1)

@@ -16,9 +16,8 @@
 // (a build of our own would race theirs on .output and .nuxt).
 import { spawnSync } from 'node:child_process'
 import { randomBytes } from 'node:crypto'
-import { availableParallelism, loadavg } from 'node:os'
+import { availableParallelism, loadavg, tmpdir } from 'node:os'
 import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs'
-import { tmpdir } from 'node:os'
 import { basename, join } from 'node:path'
 import { profile, resetDatabase, ROOT, serviceEnv, startServices, stopServices } from '../../docker-local/services.mjs'
 import { ensureBuild, ensureNodeModules, log, migrateAndSeed, signInDemoOwner, startApp, waitForHttp } from '../../docker-local/stack.mjs'

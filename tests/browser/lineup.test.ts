@@ -5,7 +5,7 @@
 // blanking edges on the picture. Screens at 1440 and 390 px go to test-results/screens/.
 import type { Browser, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_TEAM, DEMO_USERS } from '../../server/db/demo'
+import { DEMO_TEAM, DEMO_USERS } from '../../server/seed/demo'
 import { signedIn } from '../support/api'
 import type { Client } from '../support/api'
 import { launchBrowser, screen } from '../support/browser'

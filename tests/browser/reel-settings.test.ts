@@ -9,7 +9,7 @@ import { randomBytes } from 'node:crypto'
 import sharp from 'sharp'
 import type { Browser, BrowserContext, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { DEMO_PRODUCTION, DEMO_USERS } from '../../server/db/demo'
+import { DEMO_PRODUCTION, DEMO_USERS } from '../../server/seed/demo'
 import { launchBrowser, screen } from '../support/browser'
 import { APP_URL } from '../support/env'
 

@@ -9,7 +9,7 @@ import { PDFParse } from 'pdf-parse'
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, builtinSpec, DEFAULT_SPEC_NAME } from '../../shared/engine'
 import { summarise, type SheetRow } from '../../server/lib/sheet-rules'
-import { decodeBytes } from '../../workers/lib/decode-file'
+import { decodeBytes } from '../../server/lib/decode-file'
 import { renderFrameImages } from '../../workers/lib/frame-images'
 import { renderSheetPdf } from '../../workers/sheet-pdf'
 import sharp from 'sharp'
@@ -38,7 +38,7 @@ describe('PDF scope page', () => {
       reel: { id: 1, name: 'Bars', sourceLabel: '', sourceRange: 'full', matrix: '709' },
       signoff: { id: 1, signerName: 'Rae Tester', signedAt: new Date('2026-05-04T14:03:00Z'), specVersion: 1, engineVersion: '1' },
       spec, rows: [row], summary: summarise([row]),
-      images: { thumb: async () => null, scope: async (_id, kind) => (images as Record<string, { data: Uint8Array }>)[kind]?.data ?? null },
+      images: { thumb: async () => null, picture: async () => null, scope: async (_id, kind) => (images as Record<string, { data: Uint8Array }>)[kind]?.data ?? null },
     })
     const parser = new PDFParse({ data: new Uint8Array(pdf) })
     const pages = (await parser.getText()).pages

@@ -3,7 +3,8 @@
 import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from '../accumulate'
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from '../vectorscope'
 import { MASK_HIGH, MASK_LOW } from '../mask'
-import { Kernel, markRun, max3, min3, Queue } from './kernel'
+import type { Kernel, Queue } from './kernel';
+import { markRun, max3, min3 } from './kernel'
 
 /**
  * edgeEps: half-width of the band around a bin edge inside which the integer bin shortcut is

@@ -7,7 +7,8 @@ import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from '../vectorscope'
 import type { MatrixName } from '../types'
 import { MASK_HIGH, MASK_LOW } from '../mask'
 import type { MaskLimits } from '../mask'
-import { Kernel, markRun, max3, min3, Queue } from './kernel'
+import type { Kernel} from './kernel';
+import { markRun, max3, min3, Queue } from './kernel'
 
 /**
  * Measures queued R'G'B' pixels (a, b, c = R, G, B codes; n = run length) with the

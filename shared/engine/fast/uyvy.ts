@@ -1,5 +1,6 @@
 // UYVY (8-bit 4:2:2): one 32-bit word per pair of pixels is the unit of a vertical run.
-import { Kernel, Queue } from './kernel'
+import type { Kernel} from './kernel';
+import { Queue } from './kernel'
 import { pairBatch, PairTables } from './pairs'
 
 export function uyvy(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): PairTables {

@@ -1,6 +1,7 @@
 // v210 (10-bit 4:2:2): one group of six pixels (four 32-bit words) is the unit of a vertical run.
 import { v210Stride } from '../decode'
-import { Kernel, LITTLE_ENDIAN, Queue } from './kernel'
+import type { Kernel} from './kernel';
+import { LITTLE_ENDIAN, Queue } from './kernel'
 import { pairBatch, PairTables } from './pairs'
 
 export function v210(data: Uint8Array, width: number, height: number, k: Kernel, stripe: number): PairTables {

@@ -3,9 +3,8 @@
 // numbers from memory); line rate 15 734.264 Hz (FCC 47 CFR §73.682, read); horizontal blanking
 // 10.9 ± 0.2 µs and at most 21 lines of vertical blanking per field (SMPTE 170M, memory).
 import { describe, expect, it } from 'vitest'
-import { measureBlanking, NTSC_LINE_US, samplesToUs, usToSamples } from '../../../shared/engine/index'
+import { measureBlanking, NTSC_LINE_US, samplesToUs, usToSamples, packV210 } from '../../../shared/engine/index'
 import type { FrameInput } from '../../../shared/engine/index'
-import { packV210 } from '../../../shared/engine/index'
 
 describe('µs ↔ samples at 13.5 MHz (BT.601)', () => {
   it('858 samples are one NTSC line, 720 samples 53.333 µs', () => {

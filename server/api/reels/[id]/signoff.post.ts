@@ -4,7 +4,7 @@ import { IdParams } from '../../../../shared/utils/validation'
 import { QUEUE_SHEET, sheetJobId, type SheetJob } from '../../../../shared/utils/queues'
 import { producersOf, signoffMailText } from '../../../lib/notices'
 import { loadSheetRows } from '../../../lib/sheet'
-import { OVERALL_LABELS, signoffBlockers, summarise } from '../../../lib/sheet-rules'
+import { signoffBlockers, summarise } from '../../../lib/sheet-rules'
 import { clipBlockers, loadSheetClips } from '../../../lib/sheet-clips'
 import { specForProduction } from '../../../lib/specs'
 
