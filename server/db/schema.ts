@@ -329,7 +329,7 @@ export const clips = mysqlTable('clips', {
   uploadExpiresAt: datetime('upload_expires_at', { mode: 'date' }),
   status: mysqlEnum('status', CLIP_STATUSES).notNull().default('uploading'),
   failReason: varchar('fail_reason', { length: 500 }),
-  /** What ffprobe found (ClipProbe in workers/clips/probe.ts). */
+  /** What ffprobe found (ClipProbe in server/lib/clips/probe.ts). */
   probe: json('probe'),
   width: int('width'),
   height: int('height'),

@@ -3,8 +3,8 @@ import { and, eq, sql } from 'drizzle-orm'
 import type { Permission } from '../../shared/utils/roles'
 import { QUEUE_CLIP, clipProbeJobId, type ClipJob } from '../../shared/utils/clips'
 import type { ClipRow } from '../../shared/types/db'
-import { ClipRefusal, probeClip, type ClipProbe } from '../../workers/clips/probe'
-import { presignGet } from '../../workers/clips/keys'
+import { ClipRefusal, probeClip, type ClipProbe } from '../lib/clips/probe'
+import { presignGet } from '../lib/clips/keys'
 
 /** A clip the user can reach with the permission: another team's clip answers 404, as a missing one. */
 export async function requireClip(event: H3Event, clipId: number, permission: Permission) {

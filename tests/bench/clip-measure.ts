@@ -3,7 +3,7 @@
 import { statSync } from 'node:fs'
 import { builtinSpec } from '../../shared/engine/specs'
 import { measureFrames } from '../../workers/clips/measure'
-import { probeClip } from '../../workers/clips/probe'
+import { probeClip } from '../../server/lib/clips/probe'
 
 async function main() {
   const file = process.argv[2]!

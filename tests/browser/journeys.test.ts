@@ -56,7 +56,7 @@ beforeAll(async () => {
   reelId = (await reviewerApi.post(`/api/productions/${team.productionId}/reels`, { name: 'Night exteriors at the old ferry pier', sourceLabel: 'Camera A' })).body.id
   const grey = await sharp({ create: { width: 96, height: 54, channels: 3, background: { r: 90, g: 110, b: 130 } } }).png().toBuffer()
   // Uniform full-range R'G'B' noise: its saturated pixels carry composite peaks far beyond
-  // +120 IRE (REFERENCE.md §4, the 100 % bar table), so both noise frames fail the NTSC spec.
+  // +120 IRE (SMPTE 170M / EG 1 levels — memory; the 100 % bar figures computed from the BT.601 equations), so both noise frames fail the NTSC spec.
   const up = await reviewerApi.uploadFrames(reelId, [
     { name: 'street_0001.png', bytes: grey },
     { name: 'neon_0002.png', bytes: await png8(96, 54, 8801) },

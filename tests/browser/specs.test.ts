@@ -2,7 +2,7 @@
 // limit, sees the preview of what changes, applies it; the reel's verdict counts change and the
 // sheet names the new spec and version. Then the frame page's what-if judges a frame against
 // another spec in the browser. Levels: a uniform full-range 8-bit grey v has luma code
-// 16 + 219·v/255 (BT.601, REFERENCE.md §1/§7, computed): 240 → 222.1, 250 → 230.7, 120 → 119.1.
+// 16 + 219·v/255 (ITU-R BT.601-7 §2.5 studio coding — clause from memory; computed): 240 → 222.1, 250 → 230.7, 120 → 119.1.
 // Screens at 1440 and 390 px go to test-results/screens/.
 import sharp from 'sharp'
 import type { Browser, Page } from 'playwright-core'

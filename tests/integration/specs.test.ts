@@ -1,7 +1,7 @@
 // Delivery specs through the API: built-ins read-only, a team copy edited in versions, a
 // production's spec chosen and changed, every measured frame judged again from its stored
 // levels, decisions on changed frames kept and marked. Levels: a uniform full-range 8-bit
-// picture at value v has luma code 16 + 219·v/255 (BT.601 coding, REFERENCE.md §1/§7, computed).
+// picture at value v has luma code 16 + 219·v/255 (ITU-R BT.601-7 §2.5 studio coding — clause from memory; computed).
 import { and, eq, inArray } from 'drizzle-orm'
 import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'

@@ -12,9 +12,9 @@ import { contentTypeOf, createFrame, queueFrame } from '../../server/lib/frames'
 import { keys, type Storage } from '../../server/lib/storage'
 import type { AnalyseJob } from '../../shared/utils/queues'
 import { framesToTimecode, timecodeToFrames } from '../../shared/utils/timecode'
-import { presignGet } from './keys'
+import { presignGet } from '../../server/lib/clips/keys'
 import { decodePlan } from './measure'
-import type { ClipProbe } from './probe'
+import type { ClipProbe } from '../../server/lib/clips/probe'
 
 const FFMPEG = process.env.FFMPEG ?? 'ffmpeg'
 

@@ -8,7 +8,7 @@ import { analyseFrame } from '../../shared/engine/analyse'
 import type { DeliverySpec } from '../../shared/engine/specs'
 import type { FrameInput, MatrixName, SourceRange } from '../../shared/engine/types'
 import { emptyTimeline, recordFrame, sliceTimeline, type Timeline } from '../../shared/utils/clip-timeline'
-import type { ClipProbe } from './probe'
+import type { ClipProbe } from '../../server/lib/clips/probe'
 
 const FFMPEG = process.env.FFMPEG ?? 'ffmpeg'
 

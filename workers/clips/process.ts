@@ -16,10 +16,10 @@ import {
 import { copyTimeline, decodeTimeline, emptyTimeline, encodeTimeline, findEvents, sliceTimeline } from '../../shared/utils/clip-timeline'
 import type { AnalyseJob } from '../../shared/utils/queues'
 import { DEFAULT_JOB_OPTIONS } from '../../shared/utils/queues'
-import { clipKeys, presignGet } from './keys'
+import { clipKeys, presignGet } from '../../server/lib/clips/keys'
 import { clipTimecode, keepClipFrame } from './keep-frame'
 import { measureFrames } from './measure'
-import { ClipRefusal, probeClip, type ClipProbe } from './probe'
+import { ClipRefusal, probeClip, type ClipProbe } from '../../server/lib/clips/probe'
 
 export interface ClipDeps {
   db: Db

@@ -14,7 +14,7 @@ import { planChunks } from '../../../shared/utils/clips'
 import { framesToTimecode } from '../../../shared/utils/timecode'
 import { clipTimecode } from '../../../workers/clips/keep-frame'
 import { measureFrames } from '../../../workers/clips/measure'
-import { ClipRefusal, parseProbe, probeClip, type FfprobeJson } from '../../../workers/clips/probe'
+import { ClipRefusal, parseProbe, probeClip, type FfprobeJson } from '../../../server/lib/clips/probe'
 import { ffmpegRun, greyClipWithRuns, tempDir } from './make-clips'
 
 const spec = builtinSpec('ntsc-setup')!

@@ -86,7 +86,7 @@ describe('bars built from the published codes are recognised and read as the tab
     const r = measureBars(uyvyFrame(fullFieldPatches(c), 720, 486))
     expect(r.pattern).toBe('sd-100-full')
     expect(r.amplitude).toBe(100)
-    // 100 % bars, REFERENCE values computed from BT.601 (EG 1 style): yellow 89.5 IRE / 82.8 p-p, cyan 72.3 / 117.0.
+    // 100 % bars, values computed from the ITU-R BT.601 equations in the manner of SMPTE EG 1 — memory: yellow 89.5 IRE / 82.8 p-p, cyan 72.3 / 117.0.
     const y = r.bars.find(b => b.name === 'yellow')!
     expect(Math.abs(y.lumaIre - (7.5 + 92.5 * 0.886))).toBeLessThan(0.3)
     expect(Math.abs(y.chromaPpIre - 82.8)).toBeLessThan(0.6)

@@ -1,8 +1,8 @@
 // EBU R 103's measurement practice for gamut, as far as stills allow. Source: EBU R 103 v3.0
 // (2020) Annex 1 — R', G', B' within −5 %…105 % judged after spatial low-pass filtering, with
-// excursions over up to 1 % of the picture tolerated (memory; REFERENCE.md §6 figures). The
+// excursions over up to 1 % of the picture tolerated (EBU R 103 — memory). The
 // filter is ours (3×3 binomial, lowpass.ts). Pictures are built to sit just inside and just
-// outside: 16-bit studio-range R'G'B' (BT.601 coding ranges ×256, REFERENCE.md §1), so R' can
+// outside: 16-bit studio-range R'G'B' (ITU-R BT.601-7 §2.5 coding ranges ×256 — clause from memory), so R' can
 // exceed 100 %.
 import { describe, expect, it } from 'vitest'
 import { analyseFrame, builtinSpec, type DeliverySpec, type FrameInput } from '../../../shared/engine/index'

@@ -1,6 +1,6 @@
 // Judging again from stored level distributions must give what a fresh measurement gives.
 // Sources: the engine's own measurement is the reference here (the property is an identity);
-// scale definitions REFERENCE.md §4 (IRE with and without setup), §1 (BT.601 studio codes
+// scale definitions SMPTE 170M / ITU-R BT.1700 (IRE with and without setup — memory), ITU-R BT.601-7 §2.5 (studio codes
 // 16/235, 64/940); component 0/700 mV (ITU-R BT.601 analogue levels, memory).
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
@@ -110,7 +110,7 @@ describe('re-judging from stored level distributions', () => {
 })
 
 describe('thresholds in the unit a person picks', () => {
-  // Each row is one level on every scale (REFERENCE.md §1 and §4; 700 mV component white, memory).
+  // Each row is one level on every scale (ITU-R BT.601-7 §2.5 and SMPTE 170M — memory; 700 mV component white, memory).
   const rows: Array<Partial<Record<LevelScale, number>>> = [
     { code8: 16, code10: 64, ire: 7.5, ire0: 0, mv: 0, pct: 0 },
     { code8: 235, code10: 940, ire: 100, ire0: 100, mv: 700, pct: 100 },

@@ -18,7 +18,7 @@ import { summarise, type SheetRow } from '../../../server/lib/sheet-rules'
 const W = 640
 const H = 360
 // Three quarters a legal mid green, the right quarter 100 % yellow: full-range R'G'B'
-// (255, 255, 0) has a composite peak near 131 IRE on the NTSC scale (REFERENCE.md §4, the
+// (255, 255, 0) has a composite peak near 131 IRE on the NTSC scale (SMPTE 170M IRE scale — memory; computed from BT.601, the
 // 100 % bar table), beyond the spec's +120 IRE, so only that quarter carries marks.
 const GREEN = [60, 160, 60] as const
 const YELLOW = [255, 255, 0] as const

@@ -2,7 +2,7 @@ import { eq } from 'drizzle-orm'
 import { IdParams } from '../../../../shared/utils/validation'
 import { CLIP_LIMITS, ClipPresignBody } from '../../../../shared/utils/clips'
 import { checkFileName, IntakeError } from '../../../lib/intake'
-import { clipKeys } from '../../../../workers/clips/keys'
+import { clipKeys } from '../../../../server/lib/clips/keys'
 
 const URL_HOURS = 12
 

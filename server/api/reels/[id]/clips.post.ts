@@ -3,7 +3,7 @@ import { IdParams } from '../../../../shared/utils/validation'
 import { CLIP_LIMITS } from '../../../../shared/utils/clips'
 import { checkFileName, IntakeError } from '../../../lib/intake'
 import { MultipartError, isMultipart, readMultipart } from '../../../lib/multipart'
-import { clipKeys, uploadPart } from '../../../../workers/clips/keys'
+import { clipKeys, uploadPart } from '../../../../server/lib/clips/keys'
 
 /** Parts sent to S3 while the body arrives: 200 GiB in 32 MiB parts stays within S3's 10 000. */
 const PART_BYTES = 32 * 2 ** 20

@@ -2,8 +2,8 @@
 // parseProbe is pure (tested on ffprobe's JSON of generated clips); probeClip runs ffprobe
 // on a path or a presigned URL (ffprobe reads only the headers it needs, by range requests).
 import { execFile } from 'node:child_process'
-import { canDropFrame, framesToTimecode, parseTimecode, timecodeToFrames, type FrameRate } from '../../shared/utils/timecode'
-import { CLIP_LIMITS } from '../../shared/utils/clips'
+import { canDropFrame, framesToTimecode, parseTimecode, timecodeToFrames, type FrameRate } from '../../../shared/utils/timecode'
+import { CLIP_LIMITS } from '../../../shared/utils/clips'
 
 /** A clip that cannot be measured; the message is for the person who sent it. */
 export class ClipRefusal extends Error {

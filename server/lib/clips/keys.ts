@@ -2,7 +2,7 @@
 // original by range requests, so no worker copies a clip to local disk.
 import { GetObjectCommand, UploadPartCommand } from '@aws-sdk/client-s3'
 import { getSignedUrl } from '@aws-sdk/s3-request-presigner'
-import type { Storage } from '../../server/lib/storage'
+import type { Storage } from '../storage'
 
 export const clipKeys = {
   original: (teamId: number, reelId: number, clipId: number) => `teams/${teamId}/reels/${reelId}/clips/${clipId}/original`,
