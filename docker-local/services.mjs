@@ -198,8 +198,7 @@ export async function startS3(p) {
     const dir = join(p.dataDir, 's3')
     mkdirSync(dir, { recursive: true })
     const cors = join(ROOT, 'docker-local', 's3-cors.xml')
-    launch(p, 's3', process.execPath, [join(ROOT, 'node_modules/s3rver/bin/s3rver.js'), '-d', dir, '-a', '127.0.0.1',
-      '-p', String(p.ports.s3), '--silent', '--configure-bucket', p.bucket, cors])
+    launch(p, 's3', process.execPath, [join(ROOT, 'docker-local/s3-fake.mjs'), dir, '127.0.0.1', String(p.ports.s3), p.bucket, cors])
   }
   await waitFor(() => portOpen(p.ports.s3), 'S3 fake')
   log(`S3 fake   http://127.0.0.1:${p.ports.s3} bucket ${p.bucket}`)

@@ -111,6 +111,8 @@ const DIGITAL_STUDIO: DeliverySpec = {
   ],
 }
 
+// The Annex 1 clause number and the absence of fixed filter coefficients in R 103 are recalled
+// from memory (see lowpass.ts); the user-facing description states only what the spec does.
 const EBU_TOLERANCE: DeliverySpec = {
   name: 'ebu-r103-v3',
   title: 'European tolerance (EBU R 103 v3.0)',
@@ -119,9 +121,9 @@ const EBU_TOLERANCE: DeliverySpec = {
     'with excursions tolerated over up to 1 % of the picture area.',
     'Source: EBU R 103 v3.0 (2020), which supersedes the v1 figures (luma −1 %…103 %).',
     'The warning margins put the caution threshold at the v1 luma figures (−1 %, 103 %) and 1 % inside the RGB limits — our choice.',
-    'Measurement practice (R 103 v3.0 Annex 1, from memory): R\'G\'B\' is judged after spatial low-pass filtering, so that the overshoots of sharp edges',
+    'Measurement practice (R 103 v3.0): R\'G\'B\' is judged after spatial low-pass filtering, so that the overshoots of sharp edges',
     'and single-pixel excursions are not counted as gamut errors, and up to 1 % of the picture area may stand outside.',
-    'R 103 does not fix the filter in what we recall: ours is a 3×3 binomial kernel (our choice). Luma is judged unfiltered.',
+    'The filter is ours: a 3×3 binomial kernel. Luma is judged unfiltered.',
   ].join(' '),
   limits: [
     { id: 'luma-min', label: 'Luma below −5 %', quantity: 'luma', bound: 'min', value: -5, unit: 'pct', warningMargin: 4, areaTolerance: 0.01 },
