@@ -78,13 +78,15 @@ export function migrateAndSeed(env) {
  * `<runDir>/app-*.pid`, so a fault test may kill the worker and start another in its place
  * (tests/support/stack.ts) and stop() still ends whatever is listed there.
  */
-export function startApp(env, { port, runDir, quiet = false, onExit, outputDir = join(ROOT, '.output'), restart = false } = {}) {
+export function startApp(env, { port, runDir, quiet = false, onExit, onStderr, outputDir = join(ROOT, '.output'), restart = false } = {}) {
   const children = []
   const supervisors = []
-  const stdio = quiet ? ['ignore', 'ignore', 'inherit'] : 'inherit'
+  // onStderr(name, text): each piece of a process's standard error, which is still shown.
+  const stdio = [quiet ? 'ignore' : 'inherit', quiet ? 'ignore' : 'inherit', onStderr ? 'pipe' : 'inherit']
   const pidFile = (name, pid) => join(runDir, `app-${name}-${pid}.pid`)
   const spawnOne = (name, args, extraEnv) => {
     const child = spawn(process.execPath, args, { cwd: ROOT, env: { ...env, ...extraEnv }, stdio })
+    child.stderr?.on('data', (b) => { process.stderr.write(b); onStderr(name, b.toString()) })
     child.on('exit', (code, signal) => {
       child.exited = true
       if (runDir && restart) rmSync(pidFile(name, child.pid), { force: true })

@@ -12,6 +12,7 @@ import { ensureBuild, ensureNodeModules, log, migrateAndSeed, startApp, waitForH
 const p = profile('test')
 let stopApp = async () => {}
 let code = 1
+const crashes = []
 
 /**
  * One test run at a time per checkout: a second `npm test` waits for the first instead of
@@ -56,7 +57,14 @@ try {
   }
   migrateAndSeed(env)
   ensureBuild()
-  stopApp = startApp(env, { port: p.ports.app, runDir: p.runDir, quiet: true })
+  // An exception nobody caught in the app server or the worker fails the run, even when
+  // every test passed: the process logged it and went on, and a user would have met it.
+  stopApp = startApp(env, {
+    port: p.ports.app, runDir: p.runDir, quiet: true,
+    onStderr: (name, text) => {
+      for (const m of text.matchAll(/\[(uncaughtException|unhandledRejection)\][^\n]*/g)) crashes.push(`${name}: ${m[0]}`)
+    },
+  })
   await waitForHttp(`${env.LW_APP_URL}/login`)
   log('running tests')
   code = await new Promise((resolve) => {
@@ -66,6 +74,10 @@ try {
     process.on('SIGTERM', forward)
     child.on('exit', (c, sig) => resolve(c ?? (sig ? 1 : 0)))
   })
+  if (crashes.length) {
+    console.error(`[linewise] the app logged ${crashes.length} uncaught error(s) during the tests:\n  ${crashes.join('\n  ')}`)
+    code = code || 1
+  }
 } catch (e) {
   console.error(`[linewise] ${e.stack ?? e.message}`)
   code = 1

@@ -11,8 +11,8 @@ import type { H3Event } from 'h3'
 
 export const JSON_BODY_LIMIT = 128 * 1024
 const UNSAFE = new Set(['POST', 'PUT', 'PATCH', 'DELETE'])
-/** The one route that takes multipart/form-data (it caps and streams its own body). */
-const MULTIPART_ROUTE = /^\/api\/reels\/\d+\/frames\/?$/
+/** The routes that take multipart/form-data: stills and clips (each caps and streams its own body). */
+const MULTIPART_ROUTE = /^\/api\/reels\/\d+\/(?:frames|clips)\/?$/
 
 export function isSameSite(event: H3Event, appUrl: string): boolean {
   const origin = getRequestHeader(event, 'origin')
@@ -32,25 +32,35 @@ export function isSameSite(event: H3Event, appUrl: string): boolean {
   return own.has(from)
 }
 
-function closeAfter(event: H3Event) {
-  // The rest of an oversized body is not read: the connection is closed after the answer.
-  setResponseHeader(event, 'Connection', 'close')
-  event.node.res.once('finish', () => event.node.req.socket?.destroy())
-}
-
-/** Reads at most `limit` bytes of the body; past that the request is refused before more is read. */
-async function readCapped(event: H3Event, limit: number): Promise<Buffer> {
-  const chunks: Buffer[] = []
-  let size = 0
-  for await (const chunk of event.node.req as AsyncIterable<Buffer>) {
-    size += chunk.length
-    if (size > limit) {
-      closeAfter(event)
-      throw tooLarge(limit)
+/**
+ * Reads at most `limit` bytes of the body; past that the request is refused before more is
+ * read. Listeners, not `for await`: leaving an async iterator early destroys the request
+ * (and its socket) before the 413 can be sent.
+ */
+function readCapped(event: H3Event, limit: number): Promise<Buffer> {
+  const req = event.node.req
+  return new Promise((resolve, reject) => {
+    const chunks: Buffer[] = []
+    let size = 0
+    const done = () => {
+      req.off('data', onData)
+      req.off('end', onEnd)
+      req.off('error', onError)
     }
-    chunks.push(chunk)
-  }
-  return Buffer.concat(chunks)
+    const onData = (chunk: Buffer) => {
+      size += chunk.length
+      if (size <= limit) { chunks.push(chunk); return }
+      done()
+      req.pause()
+      closeConnectionAfterAnswer(event)
+      reject(tooLarge(limit))
+    }
+    const onEnd = () => { done(); resolve(Buffer.concat(chunks)) }
+    const onError = (e: Error) => { done(); reject(e) }
+    req.on('data', onData)
+    req.on('end', onEnd)
+    req.on('error', onError)
+  })
 }
 
 const tooLarge = (limit: number) => createError({ statusCode: 413, statusMessage: `The request body is larger than ${limit / 1024} KiB` })
@@ -71,7 +81,7 @@ export default defineEventHandler(async (event) => {
     throw createError({ statusCode: 415, statusMessage: 'Send this request as JSON (Content-Type: application/json)' })
   }
   if (length && Number(length) > JSON_BODY_LIMIT) {
-    closeAfter(event)
+    closeConnectionAfterAnswer(event)
     throw tooLarge(JSON_BODY_LIMIT)
   }
   // h3's body readers use this buffer instead of reading the stream again.

@@ -14,7 +14,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_PRODUCTION, DEMO_USERS } from '../../server/seed/demo'
 import { launchBrowser, screen } from '../support/browser'
 import { APP_URL } from '../support/env'
-import { greyClipWithRuns, tempDir } from '../unit/clips/make-clips'
+import { greyClipWithRunsAsync, tempDir } from '../unit/clips/make-clips'
 
 const reviewer = DEMO_USERS.find((u) => u.role === 'reviewer')!
 const url = (path: string) => `${APP_URL()}${path}`
@@ -63,7 +63,7 @@ describe('a clip from upload to a waived event', () => {
     await page.getByTestId('clips-panel').waitFor()
 
     const file = tmp.path('rough-cut.mov')
-    greyClipWithRuns(file, { rate: '25', frames: 100, size: '320x180', runs: [{ from: 30, to: 39, code10: 1000 }], timecode: '01:00:00:00' })
+    await greyClipWithRunsAsync(file, { rate: '25', frames: 100, size: '320x180', runs: [{ from: 30, to: 39, code10: 1000 }], timecode: '01:00:00:00' })
     await page.getByTestId('clip-input').setInputFiles({ name: 'rough-cut.mov', mimeType: 'video/quicktime', buffer: readFileSync(file) })
     await page.getByTestId('clip-sends').waitFor()
     await expect.poll(() => page.locator('[data-testid="clip-sends"] li').first().getAttribute('data-state'), { timeout: 60_000 }).toBe('queued')

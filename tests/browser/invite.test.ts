@@ -95,7 +95,7 @@ describe('inviting a reviewer', () => {
   })
 
   it('shows the invitation on the captured-mail page that `npm start` prints, in UTF-8', async () => {
-    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM}`))
+    const mail = await waitForMail(invitee.email, new RegExp(`invited you to ${DEMO_TEAM.replace(/[()]/g, '\\$&')}`))
     // A new user reads the invitation at the printed address, in the same browser as the app.
     const page = await inviteeCtx.newPage()
     for (const width of [1440, 390]) {

@@ -43,7 +43,7 @@ describe('PDF scope page', () => {
     const parser = new PDFParse({ data: new Uint8Array(pdf) })
     const pages = (await parser.getText()).pages
     await parser.destroy()
-    const scopePage = pages.findIndex((p) => p.text.includes('Scopes'))
+    const scopePage = pages.findIndex((p) => p.text.includes('Picture with range marks'))
     expect(scopePage).toBeGreaterThan(-1)
     const text = pages[scopePage]!.text.replace(/\s+/g, ' ')
     for (const s of ['IRE', '−20', '7.5', '100', '120', 'skin tone', 'Yl', 'Cy', 'Mg']) expect(text, s).toContain(s)

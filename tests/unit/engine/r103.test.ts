@@ -26,7 +26,8 @@ const gamutMax = (spec: DeliverySpec, input: FrameInput) => analyseFrame(input, 
 describe('EBU R 103 gamut practice', () => {
   it('the built-in spec judges R\'G\'B\' after the low-pass filter and names the practice', () => {
     expect(ebu.limits.filter(l => l.quantity === 'rgb').every(l => l.filter === 'lowpass')).toBe(true)
-    expect(ebu.description).toMatch(/Annex 1, from memory/)
+    expect(ebu.description).toMatch(/R 103 v3\.0\): R'G'B' is judged after spatial low-pass filtering/)
+    expect(ebu.description).toMatch(/3×3 binomial kernel/)
   })
 
   it('a one-pixel overshoot of 109 % is a short transient: filtered it peaks at 79.5 %, inside', () => {

@@ -31,8 +31,7 @@ export default defineEventHandler(async (event) => {
   const length = Number(getRequestHeader(event, 'content-length') ?? 0)
   const tooLarge = (files?: IntakeResult[]) => {
     // The rest of the body is not read: the connection closes after this answer.
-    setResponseHeader(event, 'Connection', 'close')
-    event.node.res.once('finish', () => event.node.req.socket?.destroy())
+    closeConnectionAfterAnswer(event)
     return createError({ statusCode: 413, statusMessage: `A request may carry at most ${MAX_REQUEST_BYTES / 2 ** 20} MiB; send fewer files at a time`, data: files ? { files } : undefined })
   }
   if (length > MAX_REQUEST_BYTES) throw tooLarge()
