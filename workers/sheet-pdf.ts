@@ -46,8 +46,8 @@ export interface SheetImages {
 export const SCOPE_KINDS = ['waveform-luma', 'waveform-flat', 'vectorscope'] as const
 export type ScopeKind = (typeof SCOPE_KINDS)[number]
 const SCOPE_TITLES: Record<ScopeKind, string> = {
-  'waveform-luma': 'Waveform, luma',
-  'waveform-flat': 'Waveform, flat (luma + chroma)',
+  'waveform-luma': 'Waveform, luma (IRE)',
+  'waveform-flat': 'Waveform, flat: luma + chroma (IRE)',
   'vectorscope': 'Vectorscope',
 }
 
@@ -424,7 +424,6 @@ function scopeLabels(doc: Doc, kind: ScopeKind, placed: { x: number, y: number, 
       doc.font('mono').fontSize(7).fillColor(m.key ? '#b06a10' : '#4a5563')
         .text(m.label, boxX + 1, placed.y + m.y * placed.h - 3.5, { width: placed.x - boxX - 3, align: 'right', lineBreak: false })
     }
-    doc.font('regular').fontSize(6.5).fillColor('#4a5563').text('IRE', boxX + 1, placed.y - 9, { width: SCALE_COLUMN - 3, align: 'right', lineBreak: false })
     return
   }
   const marks = vectorscopeMarks(matrix)

@@ -3,7 +3,7 @@ import type { RowSource } from './decode'
 import { COMP_HI, COMP_LO, HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE, VS_LAST, VS_SCALE } from './accumulate'
 import type { Accumulators, Coef, Densities, Totals } from './accumulate'
 import { fastPass } from './fast/index'
-import { spatialLevels } from './lowpass'
+import { spatialLevels, specUsesSpatial } from './lowpass'
 import { MATRICES, resolveMatrix, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre } from './scales'
 import { builtinSpec, DEFAULT_SPEC_NAME } from './specs'
@@ -111,7 +111,7 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
     const yRow = new Float64Array(width)
     referencePass(src, yRow, pbRow, prRow, coef, cbHist, crHist, levels, t, dens)
   }
-  spatialLevels(src, coef.uK, coef.vK, levels)
+  if (opts.spatialLevels !== false || specUsesSpatial(spec)) spatialLevels(src, coef.uK, coef.vK, levels)
 
   const fold = (h: Uint32Array): Uint32Array => {
     const out = new Uint32Array(bins)

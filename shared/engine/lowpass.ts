@@ -18,6 +18,7 @@ import { makeRowBuffers } from './decode'
 import type { RowSource } from './decode'
 import { levelBin, LEVEL_BINS } from './levels'
 import type { LevelDistributions } from './types'
+import type { DeliverySpec } from './specs'
 
 type SpatialKey = 'rgbMaxLp' | 'rgbMinLp' | 'lumaMaxR3' | 'lumaMinR3' | 'compMaxR3' | 'compMinR3' | 'rgbMaxR3' | 'rgbMinR3'
 export const SPATIAL_KEYS: readonly SpatialKey[] = ['rgbMaxLp', 'rgbMinLp', 'lumaMaxR3', 'lumaMinR3', 'compMaxR3', 'compMinR3', 'rgbMaxR3', 'rgbMinR3']
@@ -26,6 +27,11 @@ export const SPATIAL_KEYS: readonly SpatialKey[] = ['rgbMaxLp', 'rgbMinLp', 'lum
 interface Row {
   r: Float64Array, g: Float64Array, b: Float64Array
   yMn: Float64Array, yMx: Float64Array, hiMn: Float64Array, loMx: Float64Array, mxMn: Float64Array, mnMx: Float64Array
+}
+
+/** Whether a spec judges any limit on the spatial distributions (low-pass filter or 3×3 region). */
+export function specUsesSpatial(spec: Pick<DeliverySpec, 'limits'>): boolean {
+  return spec.limits.some((l) => l.filter === 'lowpass' || l.minRegion === '3x3')
 }
 
 /**

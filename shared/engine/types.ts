@@ -48,6 +48,12 @@ export interface AnalyseOptions {
   keepDensities?: boolean
   /** Width of the range mask made with the densities (default MASK_DEFAULT_WIDTH, never wider than the frame). */
   maskWidth?: number
+  /**
+   * false: leave out the spatial distributions (low-pass and 3×3-region levels, lowpass.ts),
+   * a second pass over the picture, unless the spec judges a limit on them. For callers that
+   * never judge the stored levels again against another spec (a clip's timeline). Default true.
+   */
+  spatialLevels?: boolean
   /** Reusable buffers for the densities and mask (analyse.ts AnalysisScratch); they then hold only until its next use. */
   scratch?: { u32(name: string, n: number): Uint32Array, u8(name: string, n: number): Uint8Array }
 }

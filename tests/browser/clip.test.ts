@@ -71,6 +71,9 @@ describe('a clip from upload to a waived event', () => {
     const item = page.locator('[data-testid^="clip-"][data-status]').first()
     await expect.poll(() => item.getAttribute('data-status'), { timeout: 120_000 }).toBe('done')
     expect(await item.innerText()).toContain('starts 01:00:00:00')
+    // The clip's event frame and its filmstrip frame join the reel's counts without a reload.
+    await expect.poll(() => page.getByTestId('count-fail').innerText(), { timeout: 60_000 }).toBe('1')
+    expect(await page.getByTestId('reel-finished-none').count()).toBe(0)
     await item.locator('[data-testid^="clip-open-"]').click()
     await page.getByTestId('clip-timeline-chart').waitFor()
     await expect.poll(() => page.getByTestId('clip-events').innerText()).toContain('01:00:01:05 → 01:00:01:14')

@@ -119,7 +119,8 @@ export async function measureFrames(o: MeasureOptions): Promise<MeasureResult> {
         if (filled < plan.frameBytes) break
         filled = 0
         if (done < o.count) {
-          const a = analyseFrame(plan.make(frame), { matrix: o.matrix, spec: o.spec })
+          // No spatial distributions unless the spec judges on them: a timeline is never re-judged from levels.
+          const a = analyseFrame(plan.make(frame), { matrix: o.matrix, spec: o.spec, spatialLevels: false })
           recordFrame(timeline, done, a, o.spec)
           done++
         }

@@ -1,4 +1,4 @@
-// Fast kernels for the common inputs (8-bit R'G'B', UYVY, v210): the same arithmetic as the
+// Fast kernels for the common inputs (8-bit R'G'B', UYVY, v210, planar 4:2:2): the same arithmetic as the
 // reference pass in analyse.ts, read straight from the source bytes, with vertical runs folded.
 //
 // Why runs: pictures brought to a level check (bars, slates, graphics, letterbox, animation)
@@ -24,6 +24,7 @@ import { Kernel } from './kernel'
 import { rgb8 } from './rgb8'
 import { uyvy } from './uyvy'
 import { v210 } from './v210'
+import { planar422 } from './planar'
 
 export { fastMode } from './rgb8'
 export { fastTuning } from './pairs'
@@ -44,6 +45,11 @@ export function fastPass(input: FrameInput, matrix: MatrixName, acc: Accumulator
   // ever run, and a call there with no type feedback deoptimised the kernel on every frame.
   else if (input.kind === 'uyvy') uyvy(input.data, input.width, input.height, k, stripe).finish(k)
   else if (input.kind === 'v210') v210(input.data, input.width, input.height, k, stripe).finish(k)
+  // Planar 4:2:2 of even width (a clip's frames as ffmpeg pipes them); odd widths and 4:4:4
+  // take the reference pass.
+  else if (input.kind === 'planar' && input.subsampling === '422' && input.width % 2 === 0) {
+    planar422(input.y, input.cb, input.cr, input.width, input.height, input.bitDepth, k, stripe).finish(k)
+  }
   else return false
   k.finish(acc)
   return true

@@ -1,4 +1,4 @@
-// The fast kernels (shared/engine/fast/: 8-bit R'G'B', UYVY, v210, with vertical runs folded)
+// The fast kernels (shared/engine/fast/: 8-bit R'G'B', UYVY, v210, planar 4:2:2, with vertical runs folded)
 // against the reference pass (analyseFrameReference: the plain per-pixel arithmetic,
 // every pixel on its own). Every count, bin, histogram, density and extreme
 // must be identical; the only allowed difference is the luma mean of 8-bit R'G'B' (summed
@@ -41,7 +41,7 @@ function codes(h: number, perRow: number, templates: number, change: number, rnd
   return out
 }
 
-const kinds = fc.constantFrom('rgb3', 'rgb4', 'rgbStudio', 'uyvy', 'v210')
+const kinds = fc.constantFrom('rgb3', 'rgb4', 'rgbStudio', 'uyvy', 'v210', 'planar8', 'planar10')
 
 function frameOf({ w, h, templates, change, seed }: { w: number, h: number, templates: number, change: number, seed: number }, kind: string): FrameInput {
   const rnd = sampler(seed)
@@ -59,6 +59,22 @@ function frameOf({ w, h, templates, change, seed }: { w: number, h: number, temp
   if (kind === 'uyvy') {
     const c = codes(h, w * 2, templates, change, rnd, 255)
     return { kind: 'uyvy', data: Uint8Array.from(c), width: w, height: h }
+  }
+  if (kind.startsWith('planar')) {
+    // 4:2:2 planes as ffmpeg pipes a clip (yuv422p, yuv422p10le); a pair's four codes come
+    // from the templates together, so runs cover the whole unit.
+    const deep = kind === 'planar10'
+    const max = deep ? 1023 : 255
+    const pairs = codes(h, w / 2, templates, change, rnd, 2 ** 30 - 1)
+    const y = deep ? new Uint16Array(w * h) : new Uint8Array(w * h)
+    const cb = deep ? new Uint16Array(w * h / 2) : new Uint8Array(w * h / 2)
+    const cr = deep ? new Uint16Array(w * h / 2) : new Uint8Array(w * h / 2)
+    for (let i = 0; i < pairs.length; i++) {
+      const p = pairs[i]!
+      y[2 * i] = p & max; y[2 * i + 1] = (p >>> 10) & max; cb[i] = (p >>> 20) & max
+      cr[i] = (Math.imul(p, 0x9e3779b1) >>> 20) & max
+    }
+    return { kind: 'planar', y, cb, cr, width: w, height: h, bitDepth: deep ? 10 : 8, subsampling: '422' }
   }
   const y = codes(h, w, templates, change, rnd, 1023)
   const cb = codes(h, w / 2, templates, change, rnd, 1023)

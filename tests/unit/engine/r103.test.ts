@@ -88,3 +88,25 @@ describe('minimum region of 3×3 pixels', () => {
     expect(verdict(spec('3x3'), 5).reasons[0]!.share).toBe(9 / (W * H))
   })
 })
+
+describe('leaving out the spatial pass (a clip\'s timeline)', () => {
+  it('is refused by a spec that judges on it: the low-pass and 3×3 verdicts stay as with the pass', () => {
+    // The 109 % one-pixel bars above: filtered inside, unfiltered a fail (computed above).
+    const input = bars(1.09, [10, 30, 50, 70, 90, 110, 130, 150, 170, 190])
+    const without = analyseFrame(input, { spec: ebu, spatialLevels: false })
+    expect(without).toEqual(analyseFrame(input, { spec: ebu }))
+    expect(without.reasons.find(r => r.limit === 'rgb-max')).toBeUndefined()
+  })
+
+  it('is left out for a spec without such limits: same verdict and statistics, no spatial distributions', () => {
+    const input = bars(1.06, run(100, 5))
+    const withPass = analyseFrame(input, { spec: unfiltered })
+    const without = analyseFrame(input, { spec: unfiltered, spatialLevels: false })
+    expect(withPass.histograms.levels.rgbMaxLp).toBeDefined()
+    expect(without.histograms.levels.rgbMaxLp).toBeUndefined()
+    expect(without.histograms.levels.lumaMaxR3).toBeUndefined()
+    const strip = (a: typeof without) => ({ ...a, histograms: { ...a.histograms, levels: { ...a.histograms.levels, rgbMaxLp: 0, rgbMinLp: 0, lumaMaxR3: 0, lumaMinR3: 0, compMaxR3: 0, compMinR3: 0, rgbMaxR3: 0, rgbMinR3: 0 } } })
+    expect(strip(without)).toEqual(strip(withPass))
+    expect(without.verdict).toBe('fail')
+  })
+})
