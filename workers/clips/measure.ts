@@ -4,10 +4,11 @@
 // densities) into a timeline row. Memory stays one frame plus the pipe's buffer, whatever
 // the clip's length; nothing is written to local disk.
 import { spawn } from 'node:child_process'
+import { Worker } from 'node:worker_threads'
 import { analyseFrame } from '../../shared/engine/analyse'
 import type { DeliverySpec } from '../../shared/engine/specs'
 import type { FrameInput, MatrixName, SourceRange } from '../../shared/engine/types'
-import { emptyTimeline, recordFrame, sliceTimeline, type Timeline } from '../../shared/utils/clip-timeline'
+import { copyTimeline, emptyTimeline, recordFrame, sliceTimeline, type Timeline } from '../../shared/utils/clip-timeline'
 import type { ClipProbe } from '../../server/lib/clips/probe'
 
 const FFMPEG = process.env.FFMPEG ?? 'ffmpeg'
@@ -20,7 +21,9 @@ export interface DecodePlan {
 }
 
 /** How a clip is piped to the engine: the pixel format asked of ffmpeg and the view of each frame. */
-export function decodePlan(p: Pick<ClipProbe, 'width' | 'height' | 'chroma' | 'bitDepth' | 'rangeTag'>, rgbRange: SourceRange): DecodePlan {
+export type PlanSource = Pick<ClipProbe, 'width' | 'height' | 'chroma' | 'bitDepth' | 'rangeTag'>
+
+export function decodePlan(p: PlanSource, rgbRange: SourceRange): DecodePlan {
   const { width: w, height: h } = p
   if (p.chroma === 'rgb') {
     const deep = p.bitDepth > 8
@@ -68,6 +71,11 @@ export interface MeasureOptions {
   rgbRange: SourceRange
   spec: DeliverySpec
   threads?: number
+  /**
+   * Engine threads (default 1: the calling thread measures). With more, frames are dealt to
+   * that many worker threads, two frame buffers each, so a chunk uses more than one core.
+   */
+  engineThreads?: number
   /** Called about once a second with frames done so far; return false to stop (cancel). */
   onProgress?: (framesDone: number) => Promise<boolean> | boolean
 }
@@ -94,16 +102,89 @@ export function ffmpegArgs(o: Pick<MeasureOptions, 'input' | 'start' | 'count' |
   return args
 }
 
+/**
+ * Where frames go to be measured: the calling thread, one frame buffer reused; or a pool of
+ * engine threads (measure-thread.ts), each frame in a buffer of its own, handed over and
+ * back without copying. `take` waits for a free buffer, so the pipe is read no faster than
+ * the engine keeps up and memory stays a few frames whatever the clip's length.
+ */
+interface FrameSink {
+  take(): Promise<Uint8Array>
+  measure(i: number, frame: Uint8Array): void
+  /** Waits for every frame handed over so far. */
+  drain(): Promise<void>
+  close(): Promise<void>
+}
+
+function inlineSink(o: MeasureOptions, plan: DecodePlan, timeline: Timeline): FrameSink {
+  const frame = new Uint8Array(plan.frameBytes)
+  return {
+    take: async () => frame,
+    measure(i, buf) {
+      // No spatial distributions unless the spec judges on them: a timeline is never re-judged from levels.
+      recordFrame(timeline, i, analyseFrame(plan.make(buf), { matrix: o.matrix, spec: o.spec, spatialLevels: false }), o.spec)
+    },
+    drain: async () => {},
+    close: async () => {},
+  }
+}
+
+function threadSink(o: MeasureOptions, plan: DecodePlan, timeline: Timeline, threads: number): FrameSink {
+  const data = { source: o.probe, rgbRange: o.rgbRange, matrix: o.matrix, spec: o.spec }
+  const pool = Array.from({ length: threads }, () => new Worker(new URL('./measure-thread.mjs', import.meta.url), { workerData: data }))
+  const free: ArrayBuffer[] = Array.from({ length: threads * 2 }, () => new ArrayBuffer(plan.frameBytes))
+  let inFlight = 0
+  let next = 0
+  let failure: Error | null = null
+  let wake: (() => void) | null = null
+  const nudge = () => { const w = wake; wake = null; w?.() }
+  for (const w of pool) {
+    w.on('message', ({ i, row, buf }: { i: number, row: Timeline, buf: ArrayBuffer }) => {
+      copyTimeline(timeline, row, i)
+      free.push(buf)
+      inFlight--
+      nudge()
+    })
+    w.on('error', (e) => { failure ??= e; nudge() })
+    w.on('exit', (code) => { if (code !== 0) failure ??= new Error(`an engine thread stopped (exit code ${code})`); nudge() })
+  }
+  const until = async (ready: () => boolean) => {
+    while (!ready()) {
+      if (failure) throw failure
+      await new Promise<void>((r) => { wake = r })
+    }
+    if (failure) throw failure
+  }
+  return {
+    async take() {
+      await until(() => free.length > 0)
+      return new Uint8Array(free.pop()!)
+    },
+    measure(i, frame) {
+      inFlight++
+      const buf = frame.buffer as ArrayBuffer
+      pool[next]!.postMessage({ i, buf }, [buf])
+      next = (next + 1) % pool.length
+    },
+    drain: () => until(() => inFlight === 0),
+    async close() {
+      for (const w of pool) w.removeAllListeners('exit')
+      await Promise.all(pool.map((w) => w.terminate()))
+    },
+  }
+}
+
 export async function measureFrames(o: MeasureOptions): Promise<MeasureResult> {
   const plan = decodePlan(o.probe, o.rgbRange)
   const timeline = emptyTimeline(o.count)
+  const threads = Math.max(1, Math.min(o.engineThreads ?? 1, 16))
+  const sink = threads > 1 ? threadSink(o, plan, timeline, threads) : inlineSink(o, plan, timeline)
   const proc = spawn(FFMPEG, ffmpegArgs({ ...o, rate: o.probe.rate }, plan), { stdio: ['ignore', 'pipe', 'pipe'] })
   let stderr = ''
   proc.stderr.on('data', (d: Buffer) => { if (stderr.length < 4000) stderr += d.toString('utf8') })
   const exited = new Promise<number | null>((resolve) => proc.on('close', (code) => resolve(code)))
   const spawnError = new Promise<Error>((resolve) => proc.on('error', resolve))
-  // One frame's buffer, reused: the engine is done with a frame before the next fills it.
-  const frame = new Uint8Array(plan.frameBytes)
+  let frame = await sink.take()
   let filled = 0
   let done = 0
   let cancelled = false
@@ -119,10 +200,9 @@ export async function measureFrames(o: MeasureOptions): Promise<MeasureResult> {
         if (filled < plan.frameBytes) break
         filled = 0
         if (done < o.count) {
-          // No spatial distributions unless the spec judges on them: a timeline is never re-judged from levels.
-          const a = analyseFrame(plan.make(frame), { matrix: o.matrix, spec: o.spec, spatialLevels: false })
-          recordFrame(timeline, done, a, o.spec)
+          sink.measure(done, frame)
           done++
+          frame = await sink.take()
         }
       }
       if (o.onProgress && Date.now() - lastReport > 1000) {
@@ -130,8 +210,10 @@ export async function measureFrames(o: MeasureOptions): Promise<MeasureResult> {
         if (!(await o.onProgress(done))) { cancelled = true; proc.kill('SIGKILL'); break }
       }
     }
+    if (!cancelled) await sink.drain()
   } finally {
     if (proc.exitCode === null) proc.kill('SIGKILL')
+    await sink.close()
   }
   const code = await Promise.race([exited, spawnError.then((e) => { throw new Error(`ffmpeg could not start: ${e.message}`) })])
   const said = stderr.split('\n').map((l) => l.trim()).filter(Boolean)

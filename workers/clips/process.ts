@@ -30,6 +30,8 @@ export interface ClipDeps {
   /** Frames per chunk; default CHUNK_SECONDS of the clip's rate. */
   chunkFrames?: number
   decodeThreads?: number
+  /** Engine threads per chunk (measureFrames' engineThreads); default 1. */
+  engineThreads?: number
 }
 
 type ClipRow = typeof t.clips.$inferSelect
@@ -114,6 +116,7 @@ export async function processClipChunk(job: { data: ClipChunkJob }, deps: ClipDe
   const result = await measureFrames({
     input: await presignGet(storage, clip.objectKey), probe, start: chunk.startFrame, count: chunk.frameCount,
     matrix: probe.matrixTag ?? reel.matrix, rgbRange: reel.sourceRange, spec, threads: deps.decodeThreads,
+    engineThreads: deps.engineThreads,
     onProgress: async (n) => {
       await db.update(t.clipChunks).set({ framesDone: n }).where(eq(t.clipChunks.id, chunk.id))
       const [now] = await db.select({ status: t.clips.status }).from(t.clips).where(eq(t.clips.id, clipId)).limit(1)

@@ -1,7 +1,9 @@
 // Wires the clip processors to BullMQ for the worker process: the clip queue (probe, merge,
-// extract) and the chunk queue. Chunks run on this thread: measureFrames awaits the pipe
-// between frames, so lock renewals get their turn while a chunk is measured.
+// extract) and the chunk queue. A chunk's frames are measured on engine threads
+// (measure-thread.ts, LW_CLIP_ENGINE_THREADS, default one per core); this thread only reads
+// the pipe and awaits, so lock renewals get their turn while a chunk is measured.
 import { FlowProducer, Queue, Worker } from 'bullmq'
+import { availableParallelism } from 'node:os'
 import type { Redis } from 'ioredis'
 import type { Db } from '../../server/db/client'
 import { Storage, storageConfigFromEnv } from '../../server/lib/storage'
@@ -26,6 +28,8 @@ export function startClipWorkers(connection: Redis, db: Db, opts: { lockDuration
   const deps: ClipDeps = {
     db, storage: new Storage(storageConfigFromEnv()), analyseQueue, flow,
     chunkFrames: intFromEnv('LW_CLIP_CHUNK_FRAMES'), decodeThreads: intFromEnv('LW_CLIP_DECODE_THREADS'),
+    // A chunk's frames are measured on one engine thread per core (the engine is synchronous).
+    engineThreads: intFromEnv('LW_CLIP_ENGINE_THREADS') ?? availableParallelism(),
   }
   const workers = [
     new Worker<ClipJob>(QUEUE_CLIP, (job) => processClipJob(job, deps), { connection, concurrency: 2, lockDuration: opts.lockDuration, stalledInterval: opts.stalledInterval }),

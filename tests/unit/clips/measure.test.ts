@@ -129,6 +129,23 @@ describe('chunked measurement equals one pass', () => {
   })
 })
 
+describe('measured on engine threads', () => {
+  it('gives the same timeline as the calling thread, frame for frame, in any number of threads', async () => {
+    const path = tmp.path('threads.mov')
+    greyClipWithRuns(path, { rate: '25', frames: 60, size: '320x180', runs: [{ from: 7, to: 12, code10: 1000 }, { from: 40, to: 41, code10: 20 }] })
+    const one = await measureWhole(path)
+    for (const engineThreads of [2, 3]) {
+      const r = await measureFrames({ input: path, probe: one.probe, start: 0, count: one.probe.frameCount, matrix: '709', rgbRange: 'full', spec, threads: 1, engineThreads })
+      expect(r.measured).toBe(60)
+      expect(r.error).toBeNull()
+      for (const col of TIMELINE_COLUMNS) expect(r.timeline.columns[col], col).toEqual(one.timeline.columns[col])
+      expect(r.timeline.verdict).toEqual(one.timeline.verdict)
+      expect(r.timeline.failMask).toEqual(one.timeline.failMask)
+    }
+    expect(findEvents(one.timeline, spec).map((e) => [e.start, e.end])).toEqual([[7, 12], [40, 41]])
+  })
+})
+
 describe('bad inputs are refused with their reason', () => {
   const refusal = async (path: string, bytes = statSync(path).size) => {
     try {
@@ -194,6 +211,10 @@ describe('bad inputs are refused with their reason', () => {
     expect(r.measured).toBeLessThan(100)
     expect(r.error).toBeTruthy()
     expect(r.timeline.frames).toBe(r.measured)
+    // On engine threads it stops at the same frame, with every frame before it measured.
+    const threaded = await measureFrames({ input: cut, probe, start: 0, count: probe.frameCount, matrix: '709', rgbRange: 'full', spec, threads: 1, engineThreads: 2 })
+    expect(threaded.measured).toBe(r.measured)
+    expect(threaded.timeline.columns.lumaMean).toEqual(r.timeline.columns.lumaMean)
   })
 })
 
