@@ -4,6 +4,7 @@
 // densities) into a timeline row. Memory stays one frame plus the pipe's buffer, whatever
 // the clip's length; nothing is written to local disk.
 import { spawn } from 'node:child_process'
+import { availableParallelism } from 'node:os'
 import { Worker } from 'node:worker_threads'
 import { analyseFrame } from '../../shared/engine/analyse'
 import type { DeliverySpec } from '../../shared/engine/specs'
@@ -58,6 +59,17 @@ export function decodePlan(p: PlanSource, rgbRange: SourceRange): DecodePlan {
       }
     },
   }
+}
+
+/**
+ * Engine threads a chunk is measured on by default: every core but one, which ffmpeg's
+ * decoding keeps busy (ProRes grain takes about 0.8 core-seconds a second of 1080p25 here).
+ * Measured on this project's 2-core machine (npm run bench:clip, December 2026): one engine
+ * thread beside ffmpeg beat two on clean graphics (4.2 s against 5.4 s for 10 s of 1080p25),
+ * two beat one on grain (20.6 s against 25.3 s); so a 2-core machine gets one.
+ */
+export function defaultEngineThreads(): number {
+  return Math.max(1, availableParallelism() - 1)
 }
 
 export interface MeasureOptions {

@@ -1,15 +1,17 @@
 // Wires the clip processors to BullMQ for the worker process: the clip queue (probe, merge,
 // extract) and the chunk queue. A chunk's frames are measured on engine threads
-// (measure-thread.ts, LW_CLIP_ENGINE_THREADS, default one per core); this thread only reads
+// (measure-thread.ts, LW_CLIP_ENGINE_THREADS, default one per core but one left to ffmpeg's
+// decoding; on two cores that is the calling thread alone); this thread only reads
 // the pipe and awaits, so lock renewals get their turn while a chunk is measured.
 import { FlowProducer, Queue, Worker } from 'bullmq'
-import { availableParallelism } from 'node:os'
 import type { Redis } from 'ioredis'
 import type { Db } from '../../server/db/client'
 import { Storage, storageConfigFromEnv } from '../../server/lib/storage'
 import { DEFAULT_JOB_OPTIONS, QUEUE_ANALYSE, type AnalyseJob } from '../../shared/utils/queues'
 import { QUEUE_CLIP, QUEUE_CLIP_CHUNK, type ClipChunkJob, type ClipJob } from '../../shared/utils/clips'
 import { processClipChunk, processClipJob, sweepClips, type ClipDeps } from './process'
+import { defaultEngineThreads } from './measure'
+
 
 function intFromEnv(name: string): number | undefined {
   const raw = process.env[name]
@@ -28,8 +30,7 @@ export function startClipWorkers(connection: Redis, db: Db, opts: { lockDuration
   const deps: ClipDeps = {
     db, storage: new Storage(storageConfigFromEnv()), analyseQueue, flow,
     chunkFrames: intFromEnv('LW_CLIP_CHUNK_FRAMES'), decodeThreads: intFromEnv('LW_CLIP_DECODE_THREADS'),
-    // A chunk's frames are measured on one engine thread per core (the engine is synchronous).
-    engineThreads: intFromEnv('LW_CLIP_ENGINE_THREADS') ?? availableParallelism(),
+    engineThreads: intFromEnv('LW_CLIP_ENGINE_THREADS') ?? defaultEngineThreads(),
   }
   const workers = [
     new Worker<ClipJob>(QUEUE_CLIP, (job) => processClipJob(job, deps), { connection, concurrency: 2, lockDuration: opts.lockDuration, stalledInterval: opts.stalledInterval }),

@@ -48,7 +48,8 @@ export function fastPass(input: FrameInput, matrix: MatrixName, acc: Accumulator
   // Planar 4:2:2 of even width (a clip's frames as ffmpeg pipes them); odd widths and 4:4:4
   // take the reference pass.
   else if (input.kind === 'planar' && input.subsampling === '422' && input.width % 2 === 0) {
-    planar422(input.y, input.cb, input.cr, input.width, input.height, input.bitDepth, k, stripe).finish(k)
+    // Without densities nothing needs stripes for cache: whole rows read the planes in order.
+    planar422(input.y, input.cb, input.cr, input.width, input.height, input.bitDepth, k, k.wave ? stripe : input.width).finish(k)
   }
   else return false
   k.finish(acc)

@@ -177,6 +177,21 @@ describe('fast kernels equal the reference pass', () => {
     expect(a).toEqual(analyseFrameReference({ kind: 'v210', data: packed, width: w, height: h }, { keepDensities: true }))
   })
 
+  it('planar planes not on a word boundary read the same as aligned ones', () => {
+    const w = 100; const h = 3
+    const rnd = sampler(11)
+    for (const deep of [false, true]) {
+      const max = deep ? 1023 : 255
+      const make = (n: number) => { const a = deep ? new Uint16Array(n + 1).subarray(1) : new Uint8Array(n + 1).subarray(1); for (let i = 0; i < n; i++) a[i] = Math.floor(rnd() * (max + 1)) % (max + 1); return a }
+      const y = make(w * h); const cb = make(w * h / 2); const cr = make(w * h / 2)
+      // Two rows alike, so runs are folded on the shifted route too.
+      y.copyWithin(w, 0, w); cb.copyWithin(w / 2, 0, w / 2); cr.copyWithin(w / 2, 0, w / 2)
+      const input: FrameInput = { kind: 'planar', y, cb, cr, width: w, height: h, bitDepth: deep ? 10 : 8, subsampling: '422' }
+      expect(y.byteOffset % 2).toBe(deep ? 0 : 1)
+      expect(analyseFrame(input, { keepDensities: true })).toEqual(analyseFrameReference(input, { keepDensities: true }))
+    }
+  })
+
   it('a whole frame of one colour (one run per column) counts every pixel once', () => {
     const w = 300; const h = 40
     const data = new Uint8Array(w * h * 3)
