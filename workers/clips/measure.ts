@@ -1,8 +1,8 @@
 // Measures a run of a clip's frames as ffmpeg decodes them: raw planar Y'CbCr at the
-// source's depth (R'G'B' sources as R'G'B') arrives on a pipe, one frame buffer is reused,
+// source's depth (R'G'B' sources as R'G'B') arrives on a pipe, frame buffers are reused,
 // and each frame goes through the engine (statistics, shares, level distributions; no
-// densities) into a timeline row. Memory stays one frame plus the pipe's buffer, whatever
-// the clip's length; nothing is written to local disk.
+// densities) into a timeline row, on this thread or on engine threads. Memory stays a few
+// frames plus the pipe's buffer, whatever the clip's length; nothing is written to local disk.
 import { spawn } from 'node:child_process'
 import { availableParallelism } from 'node:os'
 import { Worker } from 'node:worker_threads'
@@ -64,7 +64,8 @@ export function decodePlan(p: PlanSource, rgbRange: SourceRange): DecodePlan {
 /**
  * Engine threads a chunk is measured on by default: every core but one, which ffmpeg's
  * decoding keeps busy (ProRes grain takes about 0.8 core-seconds a second of 1080p25 here).
- * Measured on this project's 2-core machine (npm run bench:clip, December 2026): one engine
+ * Measured on this project's 2-core machine (tests/bench/clip-measure.ts with
+ * LW_CLIP_ENGINE_THREADS=1 and 2, the clips of npm run bench:clip, December 2026): one engine
  * thread beside ffmpeg beat two on clean graphics (4.2 s against 5.4 s for 10 s of 1080p25),
  * two beat one on grain (20.6 s against 25.3 s); so a 2-core machine gets one.
  */
