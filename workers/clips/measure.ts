@@ -158,7 +158,7 @@ function threadSink(o: MeasureOptions, plan: DecodePlan, timeline: Timeline, thr
       inFlight--
       nudge()
     })
-    w.on('error', (e) => { failure ??= e; nudge() })
+    w.on('error', (e: unknown) => { failure ??= e instanceof Error ? e : new Error(String(e)); nudge() })
     w.on('exit', (code) => { if (code !== 0) failure ??= new Error(`an engine thread stopped (exit code ${code})`); nudge() })
   }
   const until = async (ready: () => boolean) => {
