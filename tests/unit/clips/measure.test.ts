@@ -144,6 +144,19 @@ describe('measured on engine threads', () => {
     }
     expect(findEvents(one.timeline, spec).map((e) => [e.start, e.end])).toEqual([[7, 12], [40, 41]])
   })
+
+  it('an engine thread that fails fails the chunk with its error, and leaves no ffmpeg running', async () => {
+    const path = tmp.path('threads-broken.mov')
+    greyClipWithRuns(path, { rate: '25', frames: 60, size: '320x180', runs: [] })
+    const probe = await probeClip(path, statSync(path).size)
+    // A limit on a quantity the engine does not know makes every frame throw inside the thread.
+    const broken = { ...spec, limits: [{ ...spec.limits[0]!, quantity: 'nonsense' }] } as unknown as typeof spec
+    await expect(measureFrames({ input: path, probe, start: 0, count: probe.frameCount, matrix: '709', rgbRange: 'full', spec: broken, threads: 1, engineThreads: 2 }))
+      .rejects.toThrow()
+    // ffmpeg is killed before the error comes back (measureFrames' finally).
+    const ffmpegs = execFileSync('ps', ['-eo', 'args']).toString().split('\n').filter((l) => l.startsWith('ffmpeg ') && l.includes(path))
+    expect(ffmpegs).toEqual([])
+  })
 })
 
 describe('bad inputs are refused with their reason', () => {
