@@ -137,6 +137,19 @@ describe('V13.2.3: cross-site requests', () => {
     expect(res.status).toBe(201)
   })
 
+  it('the multipart upload routes (stills and clips) skip only the JSON check: a foreign Origin is refused there too, and nothing is stored', async () => {
+    const reel = await editor.post(`/api/productions/${team.productionId}/reels`, reelBody())
+    expect(reel.status).toBe(201)
+    for (const route of ['frames', 'clips']) {
+      const form = new FormData()
+      form.append('file', new Blob([await png8(16, 16, 7) as BlobPart]), `cross.${route === 'clips' ? 'mov' : 'png'}`)
+      const res = await fetch(new URL(`/api/reels/${reel.body.id}/${route}`, APP_URL()), { method: 'POST', body: form, headers: { cookie: editor.cookieHeader(), origin: 'http://evil.example' } })
+      expect(res.status, route).toBe(403)
+    }
+    expect((await editor.get(`/api/reels/${reel.body.id}/frames`)).body.total).toBe(0)
+    expect((await editor.get(`/api/reels/${reel.body.id}/clips`)).body.clips).toEqual([])
+  })
+
   it('form-encoded and text/plain bodies are refused on JSON routes (a sign-in included)', async () => {
     const u = await createUser('form')
     for (const type of ['application/x-www-form-urlencoded', 'text/plain', 'multipart/form-data; boundary=x']) {

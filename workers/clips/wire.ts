@@ -12,7 +12,6 @@ import { QUEUE_CLIP, QUEUE_CLIP_CHUNK, type ClipChunkJob, type ClipJob } from '.
 import { processClipChunk, processClipJob, sweepClips, type ClipDeps } from './process'
 import { defaultEngineThreads } from './measure'
 
-
 function intFromEnv(name: string): number | undefined {
   const raw = process.env[name]
   if (!raw) return undefined
