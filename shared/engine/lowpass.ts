@@ -16,12 +16,112 @@
 // threshold can be judged later from them (re-judging), as for the per-pixel ones.
 import { makeRowBuffers } from './decode'
 import type { RowSource } from './decode'
-import { levelBin, LEVEL_BINS } from './levels'
+import { levelBin, LEVEL_BINS, LEVEL_MIN } from './levels'
+import { max3, min3 } from './fast/kernel'
 import type { LevelDistributions } from './types'
 import type { DeliverySpec } from './specs'
 
 type SpatialKey = 'rgbMaxLp' | 'rgbMinLp' | 'lumaMaxR3' | 'lumaMinR3' | 'compMaxR3' | 'compMinR3' | 'rgbMaxR3' | 'rgbMinR3'
 export const SPATIAL_KEYS: readonly SpatialKey[] = ['rgbMaxLp', 'rgbMinLp', 'lumaMaxR3', 'lumaMinR3', 'compMaxR3', 'compMinR3', 'rgbMaxR3', 'rgbMinR3']
+
+/** Per row, after the horizontal step: filtered R', G', B' levels; 3-wide min or max of each quantity's level bin. */
+interface BinRow {
+  r: Float64Array, g: Float64Array, b: Float64Array
+  yMn: Int32Array, yMx: Int32Array, hiMn: Int32Array, loMx: Int32Array, mxMn: Int32Array, mnMx: Int32Array
+}
+
+/** levelBin (levels.ts) by the same expression, for the loops below (no call, no module cell per use). */
+const BIN_LAST = LEVEL_BINS - 1
+const BIN_BASE = -LEVEL_MIN
+
+/**
+ * Fills the spatial distributions of `levels` (allocating them). `uK`, `vK` turn Pb, Pr into
+ * U, V as the main pass does (analyse.ts), so the composite envelope is the same quantity.
+ *
+ * The same results as spatialLevelsReference, bin for bin, by a cheaper route: levelBin is
+ * monotone, so the bin of the largest (smallest) of some levels is the largest (smallest) of
+ * their bins. Each level is binned once, where it is made, and the 3×3 minima and maxima are
+ * taken on integer bins, branch-free, instead of on doubles by Math.min/Math.max (which V8
+ * cannot compile to a plain compare, as it must honour NaN and −0). The low-pass filter keeps
+ * the reference's expressions, so its sums round the same.
+ */
+export function spatialLevels(src: RowSource, uK: number, vK: number, levels: LevelDistributions): void {
+  const { width, height } = src
+  for (const k of SPATIAL_KEYS) levels[k] = new Uint32Array(LEVEL_BINS)
+  const lpMx = levels.rgbMaxLp!; const lpMn = levels.rgbMinLp!
+  const yMxD = levels.lumaMaxR3!; const yMnD = levels.lumaMinR3!; const cMxD = levels.compMaxR3!; const cMnD = levels.compMinR3!
+  const gMxD = levels.rgbMaxR3!; const gMnD = levels.rgbMinR3!
+  const buf = makeRowBuffers(width)
+  const f = () => new Float64Array(width)
+  const i32 = () => new Int32Array(width)
+  const ring: BinRow[] = [0, 1, 2].map(() => ({ r: f(), g: f(), b: f(), yMn: i32(), yMx: i32(), hiMn: i32(), loMx: i32(), mxMn: i32(), mnMx: i32() }))
+  const yB = i32(); const hiB = i32(); const loB = i32(); const mxB = i32(); const mnB = i32()
+  const last = width - 1
+  const base = BIN_BASE; const top = BIN_LAST
+  const horiz = (row: number, out: BinRow) => {
+    src.readRow(row, buf)
+    const { y, pb, pr, r: R, g: G, b: B } = buf
+    for (let x = 0; x < width; x++) {
+      const u = uK * pb[x]!; const v = vK * pr[x]!
+      const c = 219 * Math.sqrt(u * u + v * v)
+      const yy = y[x]!
+      let i = ((yy + base) * 4 + 0.5) | 0
+      yB[x] = i < 0 ? 0 : i > top ? top : i
+      i = ((yy + c + base) * 4 + 0.5) | 0
+      hiB[x] = i < 0 ? 0 : i > top ? top : i
+      i = ((yy - c + base) * 4 + 0.5) | 0
+      loB[x] = i < 0 ? 0 : i > top ? top : i
+      i = ((16 + 219 * R[x]! + base) * 4 + 0.5) | 0
+      const ir = i < 0 ? 0 : i > top ? top : i
+      i = ((16 + 219 * G[x]! + base) * 4 + 0.5) | 0
+      const ig = i < 0 ? 0 : i > top ? top : i
+      i = ((16 + 219 * B[x]! + base) * 4 + 0.5) | 0
+      const ib = i < 0 ? 0 : i > top ? top : i
+      mxB[x] = max3(ir, ig, ib); mnB[x] = min3(ir, ig, ib)
+    }
+    const { r: oR, g: oG, b: oB, yMn, yMx, hiMn, loMx, mxMn, mnMx } = out
+    for (let x = 0; x < width; x++) {
+      const a = x > 0 ? x - 1 : 0; const c = x < last ? x + 1 : last
+      // In codes: 16 + 219·v; the filter is linear, so the offset can be added after it.
+      oR[x] = 16 + 219 * (R[a]! + 2 * R[x]! + R[c]!) / 4
+      oG[x] = 16 + 219 * (G[a]! + 2 * G[x]! + G[c]!) / 4
+      oB[x] = 16 + 219 * (B[a]! + 2 * B[x]! + B[c]!) / 4
+      yMn[x] = min3(yB[a]!, yB[x]!, yB[c]!); yMx[x] = max3(yB[a]!, yB[x]!, yB[c]!)
+      hiMn[x] = min3(hiB[a]!, hiB[x]!, hiB[c]!); loMx[x] = max3(loB[a]!, loB[x]!, loB[c]!)
+      mxMn[x] = min3(mxB[a]!, mxB[x]!, mxB[c]!); mnMx[x] = max3(mnB[a]!, mnB[x]!, mnB[c]!)
+    }
+  }
+  horiz(0, ring[1]!)
+  if (height > 1) horiz(1, ring[2]!)
+  for (let row = 0; row < height; row++) {
+    const mid = ring[(row + 1) % 3]!
+    const down = row + 1 < height ? ring[(row + 2) % 3]! : mid
+    const up = row > 0 ? ring[row % 3]! : mid
+    const uR = up.r; const mR = mid.r; const dR = down.r; const uG = up.g; const mG = mid.g; const dG = down.g
+    const uB = up.b; const mB = mid.b; const dB = down.b
+    const uyMn = up.yMn; const myMn = mid.yMn; const dyMn = down.yMn; const uyMx = up.yMx; const myMx = mid.yMx; const dyMx = down.yMx
+    const uhi = up.hiMn; const mhi = mid.hiMn; const dhi = down.hiMn; const ulo = up.loMx; const mlo = mid.loMx; const dlo = down.loMx
+    const umx = up.mxMn; const mmx = mid.mxMn; const dmx = down.mxMn; const umn = up.mnMx; const mmn = mid.mnMx; const dmn = down.mnMx
+    for (let x = 0; x < width; x++) {
+      let i = ((((uR[x]! + 2 * mR[x]! + dR[x]!) / 4) + base) * 4 + 0.5) | 0
+      const ir = i < 0 ? 0 : i > top ? top : i
+      i = ((((uG[x]! + 2 * mG[x]! + dG[x]!) / 4) + base) * 4 + 0.5) | 0
+      const ig = i < 0 ? 0 : i > top ? top : i
+      i = ((((uB[x]! + 2 * mB[x]! + dB[x]!) / 4) + base) * 4 + 0.5) | 0
+      const ib = i < 0 ? 0 : i > top ? top : i
+      lpMx[max3(ir, ig, ib)]!++
+      lpMn[min3(ir, ig, ib)]!++
+      yMxD[min3(uyMn[x]!, myMn[x]!, dyMn[x]!)]!++
+      yMnD[max3(uyMx[x]!, myMx[x]!, dyMx[x]!)]!++
+      cMxD[min3(uhi[x]!, mhi[x]!, dhi[x]!)]!++
+      cMnD[max3(ulo[x]!, mlo[x]!, dlo[x]!)]!++
+      gMxD[min3(umx[x]!, mmx[x]!, dmx[x]!)]!++
+      gMnD[max3(umn[x]!, mmn[x]!, dmn[x]!)]!++
+    }
+    // The row above is no longer needed: it becomes row + 2.
+    if (row + 2 < height) horiz(row + 2, ring[row % 3]!)
+  }
+}
 
 /** Per row, after the horizontal step: filtered R', G', B'; 3-wide min of each "max" quantity and max of each "min" quantity. */
 interface Row {
@@ -35,10 +135,10 @@ export function specUsesSpatial(spec: Pick<DeliverySpec, 'limits'>): boolean {
 }
 
 /**
- * Fills the spatial distributions of `levels` (allocating them). `uK`, `vK` turn Pb, Pr into
- * U, V as the main pass does (analyse.ts), so the composite envelope is the same quantity.
+ * The plain statement of the pass, kept for the tests, which hold spatialLevels to it bin for
+ * bin: every extreme taken on the levels themselves, then binned.
  */
-export function spatialLevels(src: RowSource, uK: number, vK: number, levels: LevelDistributions): void {
+export function spatialLevelsReference(src: RowSource, uK: number, vK: number, levels: LevelDistributions): void {
   const { width, height } = src
   for (const k of SPATIAL_KEYS) levels[k] = new Uint32Array(LEVEL_BINS)
   const lp = { mx: levels.rgbMaxLp!, mn: levels.rgbMinLp! }

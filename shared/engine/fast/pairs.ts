@@ -165,7 +165,7 @@ export function pairBatch(k: Kernel, q: Queue, tb: PairTables, rowEnd: number): 
     // The chroma sample stands for both pixels of the pair.
     cbCnt[cbc]! += n2
     crCnt[crc]! += n2
-    cMax = Math.max(cMax, c)
+    if (c > cMax) cMax = c
     const ro = roT[crc]!; const bo = boT[cbc]!
     const cOut = cbOut[cbc]! | crOut[crc]!
     if (wave) vec[vrT[crc]! * vsSize + vcT[cbc]!]! += n2
@@ -176,7 +176,10 @@ export function pairBatch(k: Kernel, q: Queue, tb: PairTables, rowEnd: number): 
     yCnt[y1c]! += n
     const y0 = yv[y0c]!; const y1 = yv[y1c]!
     // Rounding is monotone, so the pair's extremes are those of its larger and smaller luma.
-    compMax = Math.max(compMax, Math.max(y0, y1) + c); compMin = Math.min(compMin, Math.min(y0, y1) - c)
+    const dy = y0c - y1c; const sy = dy & (dy >> 31)
+    const yh = yv[y0c - sy]!; const yl = yv[y1c + sy]!
+    if (yh + c > compMax) compMax = yh + c
+    if (yl - c < compMin) compMin = yl - c
     const K0 = yBin[y0c]!; const K1 = yBin[y1c]!
     dhi[K0 + qhi]! += n; dhi[K1 + qhi]! += n
     dlo[K0 - qhi]! += n; dlo[K1 - qhi]! += n

@@ -37,9 +37,11 @@ function rgbBatch(k: Kernel, q: Queue, tb: RgbTables, ch: RgbChroma, bT: Uint8Ar
     cnt[key]! += n
     const y = 16 + 219 * (S[G]! + t)
     sumY += y * n
-    yMin = Math.min(yMin, y); yMax = Math.max(yMax, y)
+    if (y < yMin) yMin = y
+    if (y > yMax) yMax = y
     const hi = y + c; const lo = y - c
-    compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
+    if (hi > compMax) compMax = hi
+    if (lo < compMin) compMin = lo
     const iy = (y * lvScale + lvOff) | 0
     const ihi = (hi * lvScale + lvOff) | 0
     const ilo = (lo * lvScale + lvOff) | 0
@@ -292,9 +294,11 @@ function rgbRows(k: Kernel, tb: RgbTables, ch: RgbChroma, bT: Uint8Array, data: 
       cnt[key]!++
       const y = 16 + 219 * (S[G]! + t)
       sumY += y
-      yMin = Math.min(yMin, y); yMax = Math.max(yMax, y)
+      if (y < yMin) yMin = y
+      if (y > yMax) yMax = y
       const hi = y + c; const lo = y - c
-      compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
+      if (hi > compMax) compMax = hi
+      if (lo < compMin) compMin = lo
       const iy = (y * lvScale + lvOff) | 0
       const ihi = (hi * lvScale + lvOff) | 0
       const ilo = (lo * lvScale + lvOff) | 0
@@ -532,19 +536,23 @@ function rgbRowsMath(k: Kernel, tb: RgbTables, data: Uint8Array, width: number, 
       const pr = (dr - t) / crDiv
       const cb = 128 + 224 * pb
       const cr = 128 + 224 * pr
-      cbMin = Math.min(cbMin, cb); cbMax = Math.max(cbMax, cb)
-      crMin = Math.min(crMin, cr); crMax = Math.max(crMax, cr)
+      if (cb < cbMin) cbMin = cb
+      if (cb > cbMax) cbMax = cb
+      if (cr < crMin) crMin = cr
+      if (cr > crMax) crMax = cr
       const cbi = (cb * hs + cbOff) | 0
       const cri = (cr * hs + cbOff) | 0
       cbH[cbi]!++
       crH[cri]!++
       const u = uK * pb; const v = vK * pr
       const c = 219 * Math.sqrt(u * u + v * v)
-      cMax = Math.max(cMax, c)
+      if (c > cMax) cMax = c
       sumY += y
-      yMin = Math.min(yMin, y); yMax = Math.max(yMax, y)
+      if (y < yMin) yMin = y
+      if (y > yMax) yMax = y
       const hi = y + c; const lo = y - c
-      compMax = Math.max(compMax, hi); compMin = Math.min(compMin, lo)
+      if (hi > compMax) compMax = hi
+      if (lo < compMin) compMin = lo
       const iy = (y * lvScale + lvOff) | 0
       const ihi = (hi * lvScale + lvOff) | 0
       const ilo = (lo * lvScale + lvOff) | 0
