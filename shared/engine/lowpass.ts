@@ -15,7 +15,7 @@
 // Edges repeat the border pixel. Distributions are on the level bins of levels.ts, so every
 // threshold can be judged later from them (re-judging), as for the per-pixel ones.
 import { makeRowBuffers } from './decode'
-import type { RowSource } from './decode'
+import type { RowBuffers, RowSource } from './decode'
 import { levelBin, LEVEL_BINS, LEVEL_MIN } from './levels'
 import { max3, min3 } from './fast/kernel'
 import type { LevelDistributions } from './types'
@@ -25,6 +25,8 @@ type SpatialKey = 'rgbMaxLp' | 'rgbMinLp' | 'lumaMaxR3' | 'lumaMinR3' | 'compMax
 export const SPATIAL_KEYS: readonly SpatialKey[] = ['rgbMaxLp', 'rgbMinLp', 'lumaMaxR3', 'lumaMinR3', 'compMaxR3', 'compMinR3', 'rgbMaxR3', 'rgbMinR3']
 
 /** Per row, after the horizontal step: filtered R', G', B' levels; 3-wide min or max of each quantity's level bin. */
+interface RowBins { y: Int32Array, hi: Int32Array, lo: Int32Array, mx: Int32Array, mn: Int32Array }
+
 interface BinRow {
   r: Float64Array, g: Float64Array, b: Float64Array
   yMn: Int32Array, yMx: Int32Array, hiMn: Int32Array, loMx: Int32Array, mxMn: Int32Array, mnMx: Int32Array
@@ -55,42 +57,8 @@ export function spatialLevels(src: RowSource, uK: number, vK: number, levels: Le
   const f = () => new Float64Array(width)
   const i32 = () => new Int32Array(width)
   const ring: BinRow[] = [0, 1, 2].map(() => ({ r: f(), g: f(), b: f(), yMn: i32(), yMx: i32(), hiMn: i32(), loMx: i32(), mxMn: i32(), mnMx: i32() }))
-  const yB = i32(); const hiB = i32(); const loB = i32(); const mxB = i32(); const mnB = i32()
-  const last = width - 1
-  const base = BIN_BASE; const top = BIN_LAST
-  const horiz = (row: number, out: BinRow) => {
-    src.readRow(row, buf)
-    const { y, pb, pr, r: R, g: G, b: B } = buf
-    for (let x = 0; x < width; x++) {
-      const u = uK * pb[x]!; const v = vK * pr[x]!
-      const c = 219 * Math.sqrt(u * u + v * v)
-      const yy = y[x]!
-      let i = ((yy + base) * 4 + 0.5) | 0
-      yB[x] = i < 0 ? 0 : i > top ? top : i
-      i = ((yy + c + base) * 4 + 0.5) | 0
-      hiB[x] = i < 0 ? 0 : i > top ? top : i
-      i = ((yy - c + base) * 4 + 0.5) | 0
-      loB[x] = i < 0 ? 0 : i > top ? top : i
-      i = ((16 + 219 * R[x]! + base) * 4 + 0.5) | 0
-      const ir = i < 0 ? 0 : i > top ? top : i
-      i = ((16 + 219 * G[x]! + base) * 4 + 0.5) | 0
-      const ig = i < 0 ? 0 : i > top ? top : i
-      i = ((16 + 219 * B[x]! + base) * 4 + 0.5) | 0
-      const ib = i < 0 ? 0 : i > top ? top : i
-      mxB[x] = max3(ir, ig, ib); mnB[x] = min3(ir, ig, ib)
-    }
-    const { r: oR, g: oG, b: oB, yMn, yMx, hiMn, loMx, mxMn, mnMx } = out
-    for (let x = 0; x < width; x++) {
-      const a = x > 0 ? x - 1 : 0; const c = x < last ? x + 1 : last
-      // In codes: 16 + 219·v; the filter is linear, so the offset can be added after it.
-      oR[x] = 16 + 219 * (R[a]! + 2 * R[x]! + R[c]!) / 4
-      oG[x] = 16 + 219 * (G[a]! + 2 * G[x]! + G[c]!) / 4
-      oB[x] = 16 + 219 * (B[a]! + 2 * B[x]! + B[c]!) / 4
-      yMn[x] = min3(yB[a]!, yB[x]!, yB[c]!); yMx[x] = max3(yB[a]!, yB[x]!, yB[c]!)
-      hiMn[x] = min3(hiB[a]!, hiB[x]!, hiB[c]!); loMx[x] = max3(loB[a]!, loB[x]!, loB[c]!)
-      mxMn[x] = min3(mxB[a]!, mxB[x]!, mxB[c]!); mnMx[x] = max3(mnB[a]!, mnB[x]!, mnB[c]!)
-    }
-  }
+  const rowBins = { y: i32(), hi: i32(), lo: i32(), mx: i32(), mn: i32() }
+  const horiz = (row: number, out: BinRow) => horizBins(src, buf, rowBins, uK, vK, row, out)
   horiz(0, ring[1]!)
   if (height > 1) horiz(1, ring[2]!)
   for (let row = 0; row < height; row++) {
@@ -102,6 +70,7 @@ export function spatialLevels(src: RowSource, uK: number, vK: number, levels: Le
     const uyMn = up.yMn; const myMn = mid.yMn; const dyMn = down.yMn; const uyMx = up.yMx; const myMx = mid.yMx; const dyMx = down.yMx
     const uhi = up.hiMn; const mhi = mid.hiMn; const dhi = down.hiMn; const ulo = up.loMx; const mlo = mid.loMx; const dlo = down.loMx
     const umx = up.mxMn; const mmx = mid.mxMn; const dmx = down.mxMn; const umn = up.mnMx; const mmn = mid.mnMx; const dmn = down.mnMx
+    const base = BIN_BASE; const top = BIN_LAST
     for (let x = 0; x < width; x++) {
       let i = ((((uR[x]! + 2 * mR[x]! + dR[x]!) / 4) + base) * 4 + 0.5) | 0
       const ir = i < 0 ? 0 : i > top ? top : i
@@ -120,6 +89,51 @@ export function spatialLevels(src: RowSource, uK: number, vK: number, levels: Le
     }
     // The row above is no longer needed: it becomes row + 2.
     if (row + 2 < height) horiz(row + 2, ring[row % 3]!)
+  }
+}
+
+/** One row read, its levels binned, then filtered and 3-wide extremes taken along it (spatialLevels). */
+function horizBins(src: RowSource, buf: RowBuffers, rowBins: RowBins, uK: number, vK: number, row: number, out: BinRow): void {
+  src.readRow(row, buf)
+  const { y, pb, pr, r: R, g: G, b: B } = buf
+  const yB = rowBins.y; const hiB = rowBins.hi; const loB = rowBins.lo; const mxB = rowBins.mx; const mnB = rowBins.mn
+  const w = src.width; const lastX = w - 1; const base = BIN_BASE; const top = BIN_LAST; const uk = uK; const vk = vK
+  for (let x = 0; x < w; x++) {
+    const u = uk * pb[x]!; const v = vk * pr[x]!
+    const c = 219 * Math.sqrt(u * u + v * v)
+    const yy = y[x]!
+    let i = ((yy + base) * 4 + 0.5) | 0
+    yB[x] = i < 0 ? 0 : i > top ? top : i
+    i = ((yy + c + base) * 4 + 0.5) | 0
+    hiB[x] = i < 0 ? 0 : i > top ? top : i
+    i = ((yy - c + base) * 4 + 0.5) | 0
+    loB[x] = i < 0 ? 0 : i > top ? top : i
+    i = ((16 + 219 * R[x]! + base) * 4 + 0.5) | 0
+    const ir = i < 0 ? 0 : i > top ? top : i
+    i = ((16 + 219 * G[x]! + base) * 4 + 0.5) | 0
+    const ig = i < 0 ? 0 : i > top ? top : i
+    i = ((16 + 219 * B[x]! + base) * 4 + 0.5) | 0
+    const ib = i < 0 ? 0 : i > top ? top : i
+    mxB[x] = max3(ir, ig, ib); mnB[x] = min3(ir, ig, ib)
+  }
+  const { r: oR, g: oG, b: oB, yMn, yMx, hiMn, loMx, mxMn, mnMx } = out
+  // Edges repeat the border pixel; between them, each neighbour is read once and carried.
+  let yA = yB[0]!; let yX = yA; let hA = hiB[0]!; let hX = hA; let lA = loB[0]!; let lX = lA
+  let xA = mxB[0]!; let xX = xA; let nA = mnB[0]!; let nX = nA
+  let rA = R[0]!; let rX = rA; let gA = G[0]!; let gX = gA; let bA = B[0]!; let bX = bA
+  for (let x = 0; x < w; x++) {
+    const c = x < lastX ? x + 1 : lastX
+    const yC = yB[c]!; const hC = hiB[c]!; const lC = loB[c]!; const xC = mxB[c]!; const nC = mnB[c]!
+    const rC = R[c]!; const gC = G[c]!; const bC = B[c]!
+    // In codes: 16 + 219·v; the filter is linear, so the offset can be added after it.
+    oR[x] = 16 + 219 * (rA + 2 * rX + rC) / 4
+    oG[x] = 16 + 219 * (gA + 2 * gX + gC) / 4
+    oB[x] = 16 + 219 * (bA + 2 * bX + bC) / 4
+    yMn[x] = min3(yA, yX, yC); yMx[x] = max3(yA, yX, yC)
+    hiMn[x] = min3(hA, hX, hC); loMx[x] = max3(lA, lX, lC)
+    mxMn[x] = min3(xA, xX, xC); mnMx[x] = max3(nA, nX, nC)
+    yA = yX; yX = yC; hA = hX; hX = hC; lA = lX; lX = lC; xA = xX; xX = xC; nA = nX; nX = nC
+    rA = rX; rX = rC; gA = gX; gX = gC; bA = bX; bX = bC
   }
 }
 
