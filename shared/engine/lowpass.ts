@@ -53,51 +53,129 @@ export function spatialLevels(src: RowSource, uK: number, vK: number, levels: Le
   const lpMx = levels.rgbMaxLp!; const lpMn = levels.rgbMinLp!
   const yMxD = levels.lumaMaxR3!; const yMnD = levels.lumaMinR3!; const cMxD = levels.compMaxR3!; const cMnD = levels.compMinR3!
   const gMxD = levels.rgbMaxR3!; const gMnD = levels.rgbMinR3!
-  const buf = makeRowBuffers(width)
   const f = () => new Float64Array(width)
   const i32 = () => new Int32Array(width)
   const ring: BinRow[] = [0, 1, 2].map(() => ({ r: f(), g: f(), b: f(), yMn: i32(), yMx: i32(), hiMn: i32(), loMx: i32(), mxMn: i32(), mnMx: i32() }))
   const rowBins = { y: i32(), hi: i32(), lo: i32(), mx: i32(), mn: i32() }
-  const horiz = (row: number, out: BinRow) => horizBins(src, buf, rowBins, uK, vK, row, out)
+  // Rows that repeat the one above (bars, graphics, letterbox) are common in what is checked:
+  // eq[row] = 1 when the row reads the same as the one above. Its horizontal step is then a
+  // copy, and an output row whose three rows are all repeats adds what the row before it added.
+  const bufs = [makeRowBuffers(width), makeRowBuffers(width)]
+  const eq = new Uint8Array(height)
+  const horiz = (row: number, out: BinRow) => {
+    const buf = bufs[row & 1]!
+    src.readRow(row, buf)
+    if (row > 0 && rowsEqual(buf, bufs[(row - 1) & 1]!, width)) {
+      eq[row] = 1
+      copyBinRow(ring[row % 3]!, out)
+    }
+    else horizBins(buf, width, rowBins, uK, vK, out)
+  }
+  // The bins of the last output row measured before a run of repeats, and how many times
+  // (itself included) they are still to be counted.
+  const idx = Array.from({ length: 8 }, i32)
+  let rep = 0
+  const dists = [lpMx, lpMn, yMxD, yMnD, cMxD, cMnD, gMxD, gMnD]
+  const flush = () => {
+    for (let d = 0; d < 8; d++) {
+      const dist = dists[d]!; const at = idx[d]!
+      for (let x = 0; x < width; x++) dist[at[x]!]! += rep
+    }
+    rep = 0
+  }
   horiz(0, ring[1]!)
   if (height > 1) horiz(1, ring[2]!)
   for (let row = 0; row < height; row++) {
+    // Rows row − 1, row and row + 1 (no edge repeat in reach) all repeat the row above each:
+    // this output row is the last one again.
+    if (rep && row + 1 < height && eq[row - 1]! & eq[row]! & eq[row + 1]!) {
+      rep++
+      if (row + 2 < height) horiz(row + 2, ring[row % 3]!)
+      continue
+    }
+    if (rep) flush()
     const mid = ring[(row + 1) % 3]!
     const down = row + 1 < height ? ring[(row + 2) % 3]! : mid
     const up = row > 0 ? ring[row % 3]! : mid
-    const uR = up.r; const mR = mid.r; const dR = down.r; const uG = up.g; const mG = mid.g; const dG = down.g
-    const uB = up.b; const mB = mid.b; const dB = down.b
-    const uyMn = up.yMn; const myMn = mid.yMn; const dyMn = down.yMn; const uyMx = up.yMx; const myMx = mid.yMx; const dyMx = down.yMx
-    const uhi = up.hiMn; const mhi = mid.hiMn; const dhi = down.hiMn; const ulo = up.loMx; const mlo = mid.loMx; const dlo = down.loMx
-    const umx = up.mxMn; const mmx = mid.mxMn; const dmx = down.mxMn; const umn = up.mnMx; const mmn = mid.mnMx; const dmn = down.mnMx
-    const base = BIN_BASE; const top = BIN_LAST
-    for (let x = 0; x < width; x++) {
-      let i = ((((uR[x]! + 2 * mR[x]! + dR[x]!) / 4) + base) * 4 + 0.5) | 0
-      const ir = i < 0 ? 0 : i > top ? top : i
-      i = ((((uG[x]! + 2 * mG[x]! + dG[x]!) / 4) + base) * 4 + 0.5) | 0
-      const ig = i < 0 ? 0 : i > top ? top : i
-      i = ((((uB[x]! + 2 * mB[x]! + dB[x]!) / 4) + base) * 4 + 0.5) | 0
-      const ib = i < 0 ? 0 : i > top ? top : i
-      lpMx[max3(ir, ig, ib)]!++
-      lpMn[min3(ir, ig, ib)]!++
-      yMxD[min3(uyMn[x]!, myMn[x]!, dyMn[x]!)]!++
-      yMnD[max3(uyMx[x]!, myMx[x]!, dyMx[x]!)]!++
-      cMxD[min3(uhi[x]!, mhi[x]!, dhi[x]!)]!++
-      cMnD[max3(ulo[x]!, mlo[x]!, dlo[x]!)]!++
-      gMxD[min3(umx[x]!, mmx[x]!, dmx[x]!)]!++
-      gMnD[max3(umn[x]!, mmn[x]!, dmn[x]!)]!++
+    // The next output row may repeat this one: keep its bins rather than count them now.
+    if (row > 0 && row + 2 < height && eq[row]! & eq[row + 1]!) {
+      verticalBins(up, mid, down, width, idx)
+      rep = 1
     }
+    else verticalCount(up, mid, down, width, dists)
     // The row above is no longer needed: it becomes row + 2.
     if (row + 2 < height) horiz(row + 2, ring[row % 3]!)
+  }
+  if (rep) flush()
+}
+
+function rowsEqual(a: RowBuffers, b: RowBuffers, w: number): boolean {
+  for (const k of ['y', 'pb', 'pr', 'r', 'g', 'b'] as const) {
+    const p = a[k]; const q = b[k]
+    for (let x = 0; x < w; x++) if (p[x] !== q[x]) return false
+  }
+  return true
+}
+
+function copyBinRow(from: BinRow, to: BinRow): void {
+  to.r.set(from.r); to.g.set(from.g); to.b.set(from.b)
+  to.yMn.set(from.yMn); to.yMx.set(from.yMx); to.hiMn.set(from.hiMn); to.loMx.set(from.loMx); to.mxMn.set(from.mxMn); to.mnMx.set(from.mnMx)
+}
+
+/** One output row: the vertical step of the filter and of the 3×3 extremes, counted into the eight distributions. */
+function verticalCount(up: BinRow, mid: BinRow, down: BinRow, width: number, dists: Uint32Array[]): void {
+  const [lpMx, lpMn, yMxD, yMnD, cMxD, cMnD, gMxD, gMnD] = dists as [Uint32Array, Uint32Array, Uint32Array, Uint32Array, Uint32Array, Uint32Array, Uint32Array, Uint32Array]
+  const uR = up.r; const mR = mid.r; const dR = down.r; const uG = up.g; const mG = mid.g; const dG = down.g
+  const uB = up.b; const mB = mid.b; const dB = down.b
+  const uyMn = up.yMn; const myMn = mid.yMn; const dyMn = down.yMn; const uyMx = up.yMx; const myMx = mid.yMx; const dyMx = down.yMx
+  const uhi = up.hiMn; const mhi = mid.hiMn; const dhi = down.hiMn; const ulo = up.loMx; const mlo = mid.loMx; const dlo = down.loMx
+  const umx = up.mxMn; const mmx = mid.mxMn; const dmx = down.mxMn; const umn = up.mnMx; const mmn = mid.mnMx; const dmn = down.mnMx
+  const base = BIN_BASE; const top = BIN_LAST
+  for (let x = 0; x < width; x++) {
+    let i = ((((uR[x]! + 2 * mR[x]! + dR[x]!) / 4) + base) * 4 + 0.5) | 0
+    const ir = i < 0 ? 0 : i > top ? top : i
+    i = ((((uG[x]! + 2 * mG[x]! + dG[x]!) / 4) + base) * 4 + 0.5) | 0
+    const ig = i < 0 ? 0 : i > top ? top : i
+    i = ((((uB[x]! + 2 * mB[x]! + dB[x]!) / 4) + base) * 4 + 0.5) | 0
+    const ib = i < 0 ? 0 : i > top ? top : i
+    lpMx[max3(ir, ig, ib)]!++
+    lpMn[min3(ir, ig, ib)]!++
+    yMxD[min3(uyMn[x]!, myMn[x]!, dyMn[x]!)]!++
+    yMnD[max3(uyMx[x]!, myMx[x]!, dyMx[x]!)]!++
+    cMxD[min3(uhi[x]!, mhi[x]!, dhi[x]!)]!++
+    cMnD[max3(ulo[x]!, mlo[x]!, dlo[x]!)]!++
+    gMxD[min3(umx[x]!, mmx[x]!, dmx[x]!)]!++
+    gMnD[max3(umn[x]!, mmn[x]!, dmn[x]!)]!++
+  }
+}
+
+/** verticalCount's bins for one output row, kept in `idx` (one array per distribution, in its order) instead of counted. */
+function verticalBins(up: BinRow, mid: BinRow, down: BinRow, width: number, idx: Int32Array[]): void {
+  const [lpMx, lpMn, yMxD, yMnD, cMxD, cMnD, gMxD, gMnD] = idx as [Int32Array, Int32Array, Int32Array, Int32Array, Int32Array, Int32Array, Int32Array, Int32Array]
+  const base = BIN_BASE; const top = BIN_LAST
+  for (let x = 0; x < width; x++) {
+    let i = ((((up.r[x]! + 2 * mid.r[x]! + down.r[x]!) / 4) + base) * 4 + 0.5) | 0
+    const ir = i < 0 ? 0 : i > top ? top : i
+    i = ((((up.g[x]! + 2 * mid.g[x]! + down.g[x]!) / 4) + base) * 4 + 0.5) | 0
+    const ig = i < 0 ? 0 : i > top ? top : i
+    i = ((((up.b[x]! + 2 * mid.b[x]! + down.b[x]!) / 4) + base) * 4 + 0.5) | 0
+    const ib = i < 0 ? 0 : i > top ? top : i
+    lpMx[x] = max3(ir, ig, ib)
+    lpMn[x] = min3(ir, ig, ib)
+    yMxD[x] = min3(up.yMn[x]!, mid.yMn[x]!, down.yMn[x]!)
+    yMnD[x] = max3(up.yMx[x]!, mid.yMx[x]!, down.yMx[x]!)
+    cMxD[x] = min3(up.hiMn[x]!, mid.hiMn[x]!, down.hiMn[x]!)
+    cMnD[x] = max3(up.loMx[x]!, mid.loMx[x]!, down.loMx[x]!)
+    gMxD[x] = min3(up.mxMn[x]!, mid.mxMn[x]!, down.mxMn[x]!)
+    gMnD[x] = max3(up.mnMx[x]!, mid.mnMx[x]!, down.mnMx[x]!)
   }
 }
 
 /** One row read, its levels binned, then filtered and 3-wide extremes taken along it (spatialLevels). */
-function horizBins(src: RowSource, buf: RowBuffers, rowBins: RowBins, uK: number, vK: number, row: number, out: BinRow): void {
-  src.readRow(row, buf)
+function horizBins(buf: RowBuffers, w: number, rowBins: RowBins, uK: number, vK: number, out: BinRow): void {
   const { y, pb, pr, r: R, g: G, b: B } = buf
   const yB = rowBins.y; const hiB = rowBins.hi; const loB = rowBins.lo; const mxB = rowBins.mx; const mnB = rowBins.mn
-  const w = src.width; const lastX = w - 1; const base = BIN_BASE; const top = BIN_LAST; const uk = uK; const vk = vK
+  const lastX = w - 1; const base = BIN_BASE; const top = BIN_LAST; const uk = uK; const vk = vK
   for (let x = 0; x < w; x++) {
     const u = uk * pb[x]!; const v = vk * pr[x]!
     const c = 219 * Math.sqrt(u * u + v * v)

@@ -45,6 +45,28 @@ function otherFrame(w: number, h: number, seed: number, kind: 'rgb16' | 'planar4
   return { kind: 'planar', y: plane(), cb: plane(), cr: plane(), width: w, height: h, bitDepth: 10, subsampling: '444' }
 }
 
+/** A frame whose row i is row order[i] of `t` (a three-row frame of a fast kernel's kind). */
+function stackRows(t: FrameInput, order: number[], h: number): FrameInput {
+  const w = t.width
+  if (t.kind === 'rgb') {
+    const ch = t.channels; const data = new Uint8Array(w * h * ch)
+    order.forEach((r, i) => data.set((t.data as Uint8Array).subarray(r * w * ch, (r + 1) * w * ch), i * w * ch))
+    return { ...t, data, height: h }
+  }
+  if (t.kind === 'uyvy') {
+    const data = new Uint8Array(w * h * 2)
+    order.forEach((r, i) => data.set(t.data.subarray(r * w * 2, (r + 1) * w * 2), i * w * 2))
+    return { ...t, data, height: h }
+  }
+  if (t.kind !== 'planar') throw new Error(`stackRows: ${t.kind}`)
+  const plane = (p: Uint8Array | Uint16Array, pw: number) => {
+    const out = new Uint16Array(pw * h)
+    order.forEach((r, i) => out.set(p.subarray(r * pw, (r + 1) * pw), i * pw))
+    return out
+  }
+  return { ...t, y: plane(t.y, w), cb: plane(t.cb, w / 2), cr: plane(t.cr, w / 2), height: h }
+}
+
 describe('spatial pass', () => {
   it('matches its reference on frames of every kind the kernels read, both matrices', () => {
     fc.assert(fc.property(shape, kinds, fc.constantFrom<MatrixName>('601', '709'), (sh, kind, matrix) => {
@@ -56,6 +78,19 @@ describe('spatial pass', () => {
     fc.assert(fc.property(fc.integer({ min: 1, max: 37 }), fc.integer({ min: 1, max: 9 }), fc.integer(),
       fc.constantFrom<'rgb16' | 'planar444'>('rgb16', 'planar444'), fc.constantFrom<MatrixName>('601', '709'),
       (w, h, seed, kind, matrix) => { expectSame(otherFrame(w, h, seed, kind), matrix) }), { numRuns: 150 })
+  })
+
+  it('matches on pictures whose rows repeat in blocks (bars, graphics, letterbox): the repeat shortcut', () => {
+    const blocks = fc.array(fc.tuple(fc.integer({ min: 0, max: 2 }), fc.integer({ min: 1, max: 7 })), { minLength: 1, maxLength: 6 })
+    fc.assert(fc.property(blocks, fc.integer({ min: 1, max: 40 }), fc.integer(), fc.constantFrom('rgb3', 'uyvy', 'planar10'),
+      (bl, halfW, seed, kind) => {
+        // Three template rows; the frame is the blocks' rows stacked (a block: one template, repeated).
+        const w = halfW * 2
+        const t = frameOf({ w, h: 3, templates: 3, change: 1, seed }, kind)
+        const h = bl.reduce((a, [, n]) => a + n, 0)
+        const order = bl.flatMap(([ti, n]) => Array.from({ length: n }, () => ti))
+        expectSame(stackRows(t, order, h), '709')
+      }), { numRuns: 200 })
   })
 
   it('matches on grain: every sample drawn afresh, no run lasting a row', () => {
