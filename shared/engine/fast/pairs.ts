@@ -218,6 +218,86 @@ export function pairBatch(k: Kernel, q: Queue, tb: PairTables, rowEnd: number): 
   q.len = 0
 }
 
+/**
+ * pairBatch for a summary of the levels (Accumulators.summary), no densities: the composite
+ * and R'G'B' extremes of each pixel are not counted into distributions but compared with the
+ * kernel's threshold bins (bin K + q ≥ F as K ≥ F − q), and their extreme bins kept; the
+ * separate R', G', B' levels are not made. Luma, Cb, Cr, the totals and shares are as pairBatch
+ * makes them, and pairs near a bin edge go to the same float route (whose counts land in the
+ * whole distributions, which the summary is added to).
+ */
+export function pairBatchSummary(k: Kernel, q: Queue, tb: PairTables, rowEnd: number): void {
+  const { gamHi, gamLo, hiF1, hiF2, loL1, loL2, mxF1, mxF2, mnL1, mnL2 } = k
+  const { yCnt, cbCnt, crCnt, yv, yBin, yOut, u: uT, bo: boT, gb: gbT, cbOut, v: vT, ro: roT, gr: grT, crOut } = tb
+  const { qr: qrT, okR, qb: qbT, okB } = tb
+  const lvScale = LV_SCALE; const compHi = COMP_HI; const compLo = COMP_LO
+  const eps = fastTuning.edgeEps; const eps1 = 1 - eps
+  if (tb.slow.length < q.len) tb.slow = new Int32Array(q.len)
+  const slow = tb.slow
+  let nSlow = 0
+  let compMin = k.compMin; let compMax = k.compMax; let cMax = k.cMax
+  let compOut = 0; let gamOut = 0; let studOut = 0
+  let hiC1 = 0; let hiC2 = 0; let loC1 = 0; let loC2 = 0; let mxC1 = 0; let mxC2 = 0; let mnC1 = 0; let mnC2 = 0
+  let hiTop = k.hiTop; let loBottom = k.loBottom; let mxTop = k.mxTop; let mnBottom = k.mnBottom; let summed = 0
+  const { a: QCb, b: QCr, c: QY0, d: QY1, n: QN } = q
+  for (let e = 0, len = q.len; e < len; e++) {
+    const cbc = QCb[e]!; const crc = QCr[e]!
+    const u = uT[cbc]!; const v = vT[crc]!
+    const c = 219 * Math.sqrt(u * u + v * v)
+    const go = grT[crc]! + gbT[cbc]!
+    const zc = c * lvScale + 0.5; const qhi = Math.floor(zc); const fc = zc - qhi
+    const zg = go * lvScale + 0.5; const qg = Math.floor(zg); const fg = zg - qg
+    if (!(okR[crc]! & okB[cbc]! & +(fc > eps) & +(fc < eps1) & +(fg > eps) & +(fg < eps1))) {
+      slow[nSlow++] = e
+      continue
+    }
+    const n = QN[e]!
+    const n2 = 2 * n
+    cbCnt[cbc]! += n2
+    crCnt[crc]! += n2
+    if (c > cMax) cMax = c
+    const ro = roT[crc]!; const bo = boT[cbc]!
+    const cOut = cbOut[cbc]! | crOut[crc]!
+    const qr = qrT[crc]!; const qb = qbT[cbc]!
+    const qmx = max3(qr, qg, qb); const qmn = min3(qr, qg, qb)
+    const y0c = QY0[e]!; const y1c = QY1[e]!
+    yCnt[y0c]! += n
+    yCnt[y1c]! += n
+    const y0 = yv[y0c]!; const y1 = yv[y1c]!
+    const dy = y0c - y1c; const sy = dy & (dy >> 31)
+    const yh = yv[y0c - sy]!; const yl = yv[y1c + sy]!
+    if (yh + c > compMax) compMax = yh + c
+    if (yl - c < compMin) compMin = yl - c
+    const K0 = yBin[y0c]!; const K1 = yBin[y1c]!
+    const Kh = yBin[y0c - sy]!; const Kl = yBin[y1c + sy]!
+    hiC1 += (+(K0 >= hiF1 - qhi) + +(K1 >= hiF1 - qhi)) * n
+    hiC2 += (+(K0 >= hiF2 - qhi) + +(K1 >= hiF2 - qhi)) * n
+    loC1 += (+(K0 <= loL1 + qhi) + +(K1 <= loL1 + qhi)) * n
+    loC2 += (+(K0 <= loL2 + qhi) + +(K1 <= loL2 + qhi)) * n
+    mxC1 += (+(K0 >= mxF1 - qmx) + +(K1 >= mxF1 - qmx)) * n
+    mxC2 += (+(K0 >= mxF2 - qmx) + +(K1 >= mxF2 - qmx)) * n
+    mnC1 += (+(K0 <= mnL1 - qmn) + +(K1 <= mnL1 - qmn)) * n
+    mnC2 += (+(K0 <= mnL2 - qmn) + +(K1 <= mnL2 - qmn)) * n
+    if (Kh + qhi > hiTop) hiTop = Kh + qhi
+    if (Kl - qhi < loBottom) loBottom = Kl - qhi
+    if (Kh + qmx > mxTop) mxTop = Kh + qmx
+    if (Kl + qmn < mnBottom) mnBottom = Kl + qmn
+    summed += n2
+    compOut += (+(y0 + c > compHi) | +(y0 - c < compLo)) * n + (+(y1 + c > compHi) | +(y1 - c < compLo)) * n
+    const r0 = y0 + ro; const g0 = y0 + go; const b0 = y0 + bo
+    const r1 = y1 + ro; const g1 = y1 + go; const b1 = y1 + bo
+    gamOut += (+(r0 > gamHi) | +(g0 > gamHi) | +(b0 > gamHi) | +(r0 < gamLo) | +(g0 < gamLo) | +(b0 < gamLo)) * n
+      + (+(r1 > gamHi) | +(g1 > gamHi) | +(b1 > gamHi) | +(r1 < gamLo) | +(g1 < gamLo) | +(b1 < gamLo)) * n
+    studOut += (cOut | yOut[y0c]!) * n + (cOut | yOut[y1c]!) * n
+  }
+  k.compMin = compMin; k.compMax = compMax; k.cMax = cMax
+  k.compOut += compOut; k.gamOut += gamOut; k.studOut += studOut
+  k.hiC1 += hiC1; k.hiC2 += hiC2; k.loC1 += loC1; k.loC2 += loC2; k.mxC1 += mxC1; k.mxC2 += mxC2; k.mnC1 += mnC1; k.mnC2 += mnC2
+  k.hiTop = hiTop; k.loBottom = loBottom; k.mxTop = mxTop; k.mnBottom = mnBottom; k.summed += summed
+  if (nSlow) pairFloat(k, q, tb, nSlow, rowEnd)
+  q.len = 0
+}
+
 /** The pairs pairBatch set aside, measured by the float route: every level binned from its value. */
 function pairFloat(k: Kernel, q: Queue, tb: PairTables, nSlow: number, rowEnd: number): void {
   const { gamHi, gamLo, wave, rowOff, colOf, maskCol } = k

@@ -11,7 +11,7 @@ import { fastMode, fastTuning } from '../../../shared/engine/fast/index'
 import { HIGH_CHROMA, HIGH_LUMA, LOW_BAND, LV_OFF, LV_SCALE } from '../../../shared/engine/accumulate'
 import { MATRICES } from '../../../shared/engine/matrix'
 import type { FrameAnalysis, FrameInput, MatrixName } from '../../../shared/engine/index'
-import { frameOf, kinds, sampler, shape } from './frames'
+import { codes, frameOf, kinds, sampler, shape } from './frames'
 
 const frames = fc.tuple(shape, kinds).map(([sh, kind]) => frameOf(sh, kind))
 

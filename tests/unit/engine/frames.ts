@@ -23,7 +23,7 @@ export function sampler(seed: number) {
 }
 
 /** Sample index (row, i) → a code, from templates with changes. */
-function codes(h: number, perRow: number, templates: number, change: number, rnd: () => number, max: number): Int32Array {
+export function codes(h: number, perRow: number, templates: number, change: number, rnd: () => number, max: number): Int32Array {
   const t = Array.from({ length: templates }, () => Array.from({ length: perRow }, () => Math.floor(rnd() * (max + 1))))
   const out = new Int32Array(h * perRow)
   for (let row = 0; row < h; row++) {
