@@ -63,16 +63,8 @@ export interface Densities {
 
 export interface Coef { uK: number, vK: number, rK: number, bK: number, gR: number, gB: number, cbOff: number, hs: number, gamHi: number, gamLo: number }
 
-/**
- * Threshold bins of a summary of the levels (AnalyseOptions.levels 'spec'; verdict.ts
- * thresholdBins): at most two per distribution, counted as bin ≥ F for compMax/rgbMax and
- * bin ≤ L for compMin/rgbMin.
- */
-export interface SummaryBins { compMax: number[], compMin: number[], rgbMax: number[], rgbMin: number[] }
-
 export interface Accumulators {
   coef: Coef
-  summary?: SummaryBins
   cbHist: Uint32Array
   crHist: Uint32Array
   levels: LevelDistributions

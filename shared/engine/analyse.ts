@@ -8,7 +8,7 @@ import { MATRICES, resolveMatrix, U_WEIGHT, V_WEIGHT } from './matrix'
 import { code8ToIre } from './scales'
 import { builtinSpec, DEFAULT_SPEC_NAME } from './specs'
 import type { DeliverySpec } from './specs'
-import { evaluateSpec, thresholdBins } from './verdict'
+import { evaluateSpec } from './verdict'
 import { LEVEL_BINS, LEVEL_MIN, LEVEL_STEP, percentile, shareAbove, shareBelow } from './levels'
 import { waveformGeometry, waveformRowOffsets, WAVEFORM_IRE_BOTTOM, WAVEFORM_IRE_TOP, WAVEFORM_ROWS } from './waveform'
 import { VECTORSCOPE_EXTENT, VECTORSCOPE_SIZE } from './vectorscope'
@@ -101,14 +101,6 @@ function analyse(input: FrameInput, opts: AnalyseOptions, fast: boolean): FrameA
     gamLo: 16 - (input.kind === 'rgb' ? GAMUT_MARGIN_RGB_CODE8 : GAMUT_MARGIN_CODE8),
   }
   const acc: Accumulators = { coef, cbHist, crHist, levels, t, dens }
-  if (fast && opts.levels === 'spec' && !dens && input.kind === 'planar' && input.subsampling === '422' && input.width % 2 === 0
-    && !specUsesSpatial(spec)) {
-    const bins = thresholdBins(spec)
-    if (bins.compMax.length <= 2 && bins.compMin.length <= 2 && bins.rgbMax.length <= 2 && bins.rgbMin.length <= 2) {
-      acc.summary = bins
-      levels.summaryOf = spec.name
-    }
-  }
   if (fast && fastPass(input, matrix, acc, DENSITY_STRIPE)) {
     // The fast kernel has filled every accumulator.
   }

@@ -54,15 +54,6 @@ export interface AnalyseOptions {
    * never judge the stored levels again against another spec (a clip's timeline). Default true.
    */
   spatialLevels?: boolean
-  /**
-   * 'spec': count the composite and R'G'B' levels only against the thresholds the spec's limits
-   * read, instead of into whole distributions (LevelDistributions.summaryOf): the same verdict,
-   * reasons, statistics and shares for a little over half the work on grain. For callers that
-   * judge a frame once and keep its statistics (a clip's timeline). Taken for planar 4:2:2
-   * without densities when the spec needs no spatial pass and reads at most two thresholds of
-   * each distribution; otherwise the whole distributions are counted. Default 'all'.
-   */
-  levels?: 'all' | 'spec'
   /** Reusable buffers for the densities and mask (analyse.ts AnalysisScratch); they then hold only until its next use. */
   scratch?: { u32(name: string, n: number): Uint32Array, u8(name: string, n: number): Uint8Array }
 }
@@ -122,12 +113,6 @@ export interface VerdictReason {
 export interface LevelDistributions {
   min: number
   step: number
-  /**
-   * Set when made with `levels: 'spec'` (AnalyseOptions): compMax, compMin, rgbMax and rgbMin
-   * then keep only what one spec reads (how many pixels lie beyond each of its thresholds, and
-   * the extreme bin), and r, g, b are empty. Never to be judged against another spec.
-   */
-  summaryOf?: string
   luma: Uint32Array
   compMax: Uint32Array
   compMin: Uint32Array

@@ -2,7 +2,7 @@ import { formatShare, fromScale, ireToCode8, SCALE_UNITS, toScale } from './scal
 import type { LevelScale } from './scales'
 import type { DeliverySpec, SpecLimit } from './specs'
 import type { FrameAnalysis, Verdict, VerdictReason } from './types'
-import { firstBinAbove, lastBinBelow, LEVEL_BINS, LEVEL_MIN, LEVEL_STEP, shareAbove, shareBelow } from './levels'
+import { shareAbove, shareBelow } from './levels'
 
 export type Measured = Pick<FrameAnalysis, 'width' | 'height' | 'histograms' | 'luma' | 'compositeIre' | 'chroma'>
 
@@ -101,31 +101,4 @@ export function evaluateSpec(a: Measured, spec: DeliverySpec): SpecEvaluation {
   }
   const verdict: Verdict = reasons.some(r => r.severity === 'fail') ? 'fail' : reasons.length ? 'caution' : 'pass'
   return { verdict, reasons }
-}
-
-/**
- * The level bins evaluateSpec reads of the four distributions a limit can judge per pixel:
- * for compMax and rgbMax the first bin counted by each max-bound limit's fail and caution
- * thresholds (it sums bins ≥ it), for compMin and rgbMin the last bin counted by each
- * min-bound one (it sums bins ≤ it), in order, without repeats. What a summary of the levels
- * (AnalyseOptions.levels 'spec') must keep exactly. Spatial limits read other distributions.
- */
-export interface ThresholdBins { compMax: number[], compMin: number[], rgbMax: number[], rgbMin: number[] }
-
-export function thresholdBins(spec: Pick<DeliverySpec, 'limits'>): ThresholdBins {
-  const out: ThresholdBins = { compMax: [], compMin: [], rgbMax: [], rgbMin: [] }
-  for (const l of spec.limits) {
-    if (l.quantity !== 'composite' && l.quantity !== 'rgb') continue
-    if (l.filter === 'lowpass' || l.minRegion === '3x3') continue
-    const max = l.bound === 'max'
-    const key = `${l.quantity === 'composite' ? 'comp' : 'rgb'}${max ? 'Max' : 'Min'}` as keyof ThresholdBins
-    const inward = max ? -l.warningMargin : l.warningMargin
-    const values = l.warningMargin > 0 ? [l.value, l.value + inward] : [l.value]
-    for (const v of values) {
-      const th = toCode8(v, l)
-      const bin = max ? firstBinAbove(LEVEL_MIN, LEVEL_STEP, th) : lastBinBelow(LEVEL_MIN, LEVEL_STEP, th, LEVEL_BINS)
-      if (!out[key].includes(bin)) out[key].push(bin)
-    }
-  }
-  return out
 }

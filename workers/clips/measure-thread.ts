@@ -7,7 +7,7 @@ import { analyseFrame } from '../../shared/engine/analyse'
 import type { DeliverySpec } from '../../shared/engine/specs'
 import type { MatrixName, SourceRange } from '../../shared/engine/types'
 import { emptyTimeline, recordFrame } from '../../shared/utils/clip-timeline'
-import { CLIP_FRAME_OPTIONS, decodePlan, type PlanSource } from './measure'
+import { decodePlan, type PlanSource } from './measure'
 
 export interface EngineThreadData { source: PlanSource, rgbRange: SourceRange, matrix: MatrixName, spec: DeliverySpec }
 export interface EngineThreadFrame { i: number, buf: ArrayBuffer }
@@ -15,7 +15,7 @@ export interface EngineThreadFrame { i: number, buf: ArrayBuffer }
 const { source, rgbRange, matrix, spec } = workerData as EngineThreadData
 const plan = decodePlan(source, rgbRange)
 parentPort!.on('message', ({ i, buf }: EngineThreadFrame) => {
-  const a = analyseFrame(plan.make(new Uint8Array(buf, 0, plan.frameBytes)), { matrix, spec, ...CLIP_FRAME_OPTIONS })
+  const a = analyseFrame(plan.make(new Uint8Array(buf, 0, plan.frameBytes)), { matrix, spec, spatialLevels: false })
   const row = emptyTimeline(1)
   recordFrame(row, 0, a, spec)
   parentPort!.postMessage({ i, row, buf }, [buf])

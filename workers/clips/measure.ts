@@ -129,20 +129,13 @@ interface FrameSink {
   close(): Promise<void>
 }
 
-/**
- * How a clip's frames are measured: a timeline is judged once against its spec and never
- * re-judged from its levels, so no spatial distributions unless the spec judges on them, and
- * the composite and R'G'B' levels counted only against the spec's thresholds (a summary:
- * the same verdicts, reasons and statistics; AnalyseOptions.levels).
- */
-export const CLIP_FRAME_OPTIONS = { spatialLevels: false, levels: 'spec' } as const
-
 function inlineSink(o: MeasureOptions, plan: DecodePlan, timeline: Timeline): FrameSink {
   const frame = new Uint8Array(plan.frameBytes)
   return {
     take: async () => frame,
     measure(i, buf) {
-      recordFrame(timeline, i, analyseFrame(plan.make(buf), { matrix: o.matrix, spec: o.spec, ...CLIP_FRAME_OPTIONS }), o.spec)
+      // No spatial distributions unless the spec judges on them: a timeline is never re-judged from levels.
+      recordFrame(timeline, i, analyseFrame(plan.make(buf), { matrix: o.matrix, spec: o.spec, spatialLevels: false }), o.spec)
     },
     drain: async () => {},
     close: async () => {},

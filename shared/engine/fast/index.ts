@@ -20,7 +20,7 @@
 // toss for the branch predictor, which costs more than the arithmetic they guard.
 import type { Accumulators } from '../accumulate'
 import type { FrameInput, MatrixName } from '../types'
-import { foldSummary, Kernel } from './kernel'
+import { Kernel } from './kernel'
 import { rgb8 } from './rgb8'
 import { uyvy } from './uyvy'
 import { v210 } from './v210'
@@ -50,11 +50,6 @@ export function fastPass(input: FrameInput, matrix: MatrixName, acc: Accumulator
   else if (input.kind === 'planar' && input.subsampling === '422' && input.width % 2 === 0) {
     // Without densities nothing needs stripes for cache: whole rows read the planes in order.
     planar422(input.y, input.cb, input.cr, input.width, input.height, input.bitDepth, k, k.wave ? stripe : input.width).finish(k)
-    if (k.summary) {
-      foldSummary(k, acc.levels)
-      // Only the float route's pairs would be in them: empty, as the summary promises.
-      acc.levels.r.fill(0); acc.levels.g.fill(0); acc.levels.b.fill(0)
-    }
   }
   else return false
   k.finish(acc)

@@ -2,11 +2,6 @@
 // ended runs, branch-free max/min and the range mask's run marking.
 import type { Accumulators } from '../accumulate'
 import type { MaskLimits } from '../mask'
-import { LEVEL_BINS } from '../levels'
-import type { LevelDistributions } from '../types'
-
-/** A bin no level reaches: the threshold of an unused summary slot. */
-const NEVER = 1 << 30
 
 export const LITTLE_ENDIAN = new Uint8Array(new Uint32Array([1]).buffer)[0] === 1
 
@@ -23,16 +18,6 @@ export class Kernel {
   sumY = 0; yMin: number; yMax: number; cbMin: number; cbMax: number; crMin: number; crMax: number
   compMin: number; compMax: number; cMax: number
   compOut = 0; gamOut = 0; studOut = 0
-  /**
-   * A summary of the levels (Accumulators.summary): two threshold bins per distribution
-   * (unused ones beyond reach), how many pixels each counted, the extreme bins and how many
-   * pixels the summary holds.
-   */
-  readonly summary: boolean
-  readonly hiF1: number; readonly hiF2: number; readonly loL1: number; readonly loL2: number
-  readonly mxF1: number; readonly mxF2: number; readonly mnL1: number; readonly mnL2: number
-  hiC1 = 0; hiC2 = 0; loC1 = 0; loC2 = 0; mxC1 = 0; mxC2 = 0; mnC1 = 0; mnC2 = 0
-  hiTop = -1; loBottom = NEVER; mxTop = -1; mnBottom = NEVER; summed = 0
 
   constructor(acc: Accumulators) {
     const { levels: lv, dens, coef: k, t } = acc
@@ -51,12 +36,6 @@ export class Kernel {
     this.cbOff = k.cbOff; this.hs = k.hs; this.gamHi = k.gamHi; this.gamLo = k.gamLo
     this.yMin = t.yMin; this.yMax = t.yMax; this.cbMin = t.cbMin; this.cbMax = t.cbMax; this.crMin = t.crMin; this.crMax = t.crMax
     this.compMin = t.compMin; this.compMax = t.compMax; this.cMax = t.cMax
-    const sb = acc.summary
-    this.summary = sb !== undefined
-    const up = (a: number[] | undefined, i: number) => a?.[i] ?? NEVER
-    const down = (a: number[] | undefined, i: number) => a?.[i] ?? -NEVER
-    this.hiF1 = up(sb?.compMax, 0); this.hiF2 = up(sb?.compMax, 1); this.loL1 = down(sb?.compMin, 0); this.loL2 = down(sb?.compMin, 1)
-    this.mxF1 = up(sb?.rgbMax, 0); this.mxF2 = up(sb?.rgbMax, 1); this.mnL1 = down(sb?.rgbMin, 0); this.mnL2 = down(sb?.rgbMin, 1)
   }
 
   finish(acc: Accumulators): void {
@@ -108,39 +87,5 @@ export class Queue {
   constructor(size: number) {
     this.x = new Int32Array(size); this.a = new Int32Array(size); this.b = new Int32Array(size)
     this.c = new Int32Array(size); this.d = new Int32Array(size); this.n = new Int32Array(size)
-  }
-}
-
-/**
- * Turns a kernel's summary counts into level distributions that evaluateSpec reads exactly as
- * it would read the whole ones: every pixel of the summary is put in a bin on the same side of
- * each threshold as its own, and the extreme pixel in its own bin, so the count beyond each
- * threshold and the extreme bin are the true ones. Added to what the float route counted.
- */
-export function foldSummary(k: Kernel, lv: LevelDistributions): void {
-  if (!k.summed) return
-  place(lv.compMax, [k.hiF1, k.hiF2], [k.hiC1, k.hiC2], k.hiTop, k.summed, false)
-  place(lv.compMin, [k.loL1, k.loL2], [k.loC1, k.loC2], k.loBottom, k.summed, true)
-  place(lv.rgbMax, [k.mxF1, k.mxF2], [k.mxC1, k.mxC2], k.mxTop, k.summed, false)
-  place(lv.rgbMin, [k.mnL1, k.mnL2], [k.mnC1, k.mnC2], k.mnBottom, k.summed, true)
-}
-
-/**
- * `total` pixels whose bins reach `extreme` at most, `counts[i]` of them at or beyond
- * `bins[i]` (above, or below when `below`), placed segment by segment between the thresholds.
- */
-function place(d: Uint32Array, bins: number[], counts: number[], extreme: number, total: number, below: boolean): void {
-  const last = LEVEL_BINS - 1
-  // Worked as "at or above" on mirrored bins when counting below.
-  const at = (i: number) => below ? last - i : i
-  const ts = bins.map((b, i) => ({ b: at(b), c: counts[i]! })).filter(t => t.b >= 0 && t.b <= last).sort((p, q) => p.b - q.b)
-  const top = at(extreme)
-  for (let s = 0; s <= ts.length; s++) {
-    const from = s === 0 ? -Infinity : ts[s - 1]!.b
-    const to = s < ts.length ? ts[s]!.b : Infinity
-    const n = (s === 0 ? total : ts[s - 1]!.c) - (s < ts.length ? ts[s]!.c : 0)
-    if (!n) continue
-    const bin = top >= from && top < to ? top : s === 0 ? to - 1 : from
-    d[at(bin)]! += n
   }
 }

@@ -6,7 +6,7 @@
 // route with the pair's luma put together from the samples.
 import type { Kernel } from './kernel'
 import { LITTLE_ENDIAN, Queue } from './kernel'
-import { pairBatch, pairBatchSummary, PairTables } from './pairs'
+import { pairBatch, PairTables } from './pairs'
 
 export function planar422(
   yP: Uint8Array | Uint16Array, cbP: Uint8Array | Uint16Array, crP: Uint8Array | Uint16Array,
@@ -29,7 +29,6 @@ export function planar422(
   const runs = new Int32Array(pairs)
   const q = new Queue(pairs)
   const { x: QX, a: QCb, b: QCr, c: QY0, d: QY1, n: QN } = q
-  const batch = k.summary ? pairBatchSummary : pairBatch
   for (let x0 = 0; x0 < width; x0 += stripe) {
     const np = Math.min(stripe, width - x0) >> 1
     runs.fill(0)
@@ -62,7 +61,7 @@ export function planar422(
         }
       }
       q.len = m
-      if (m) batch(k, q, tb, row)
+      if (m) pairBatch(k, q, tb, row)
     }
   }
   return tb
