@@ -39,10 +39,14 @@ function failReason(e: unknown) {
 const scratchPool: AnalysisScratch[] = []
 
 async function storeImages(storage: Storage, frame: StoredFrame['frame'], images: Partial<Record<string, FrameImage>>, lines: Uint8Array) {
-  await Promise.all([
+  // Every upload settles before this returns, failed or not: the line data may be a buffer
+  // the next job reuses, and must not be read by a request still in flight.
+  const settled = await Promise.allSettled([
     ...Object.entries(images).map(([kind, img]) => storage.put(keys.image(frame.teamId, frame.id, kind), img!.data, img!.contentType)),
     storage.put(keys.lines(frame.teamId, frame.id), lines, 'application/octet-stream'),
   ])
+  const failed = settled.find((r) => r.status === 'rejected')
+  if (failed) throw failed.reason
 }
 
 /** The viewing copy, thumbnail and line data of a frame analysed before they were stored. */
@@ -108,19 +112,20 @@ async function measureAndWrite(frame: FrameRow, reel: ReelRow, deps: AnalyseDeps
   const started = performance.now()
   const { input } = await decodeStoredFrame(storage, { frame, reel })
   const { spec, version, id: specId } = await specForProduction(db, reel.productionId)
-  // Density buffers are reused from job to job (8 MB per 1080p frame otherwise allocated
-  // and collected); one scratch per job in flight, returned once its images are drawn.
+  // Density buffers, the drawn scope images and the line data are reused from job to job
+  // (about 25 MB per 1080p frame otherwise allocated, and collected in full collections);
+  // one scratch per job in flight, returned once everything drawn in it is stored.
   const scratch = scratchPool.pop() ?? new AnalysisScratch()
   let a: ReturnType<typeof analyseFrame>
   let images: Awaited<ReturnType<typeof renderFrameImages>>
   try {
     a = analyseFrame(input, { matrix: reel.matrix, spec, keepDensities: true, scratch })
-    images = await renderFrameImages(input, a, reel.matrix)
+    images = await renderFrameImages(input, a, reel.matrix, undefined, scratch)
+    await storeImages(storage, frame, images, encodeFrameLines(input, (n) => scratch.raw('line data', n)))
   }
   finally {
     scratchPool.push(scratch)
   }
-  await storeImages(storage, frame, images, encodeFrameLines(input))
   const levels = packLevels(a.histograms.levels)
   const histograms = histogramsJson(a.histograms)
   const outShare = Math.max(a.shares.belowBlack, a.shares.aboveWhite, a.shares.compositeOut, a.shares.gamutOut)

@@ -43,12 +43,15 @@ function layoutOf(input: FrameInput): { layout: LineLayout, bytes: Uint8Array } 
 }
 
 /** The frame's line data object (the worker writes it beside the scope images). */
-export function encodeFrameLines(input: FrameInput): Uint8Array {
+export function encodeFrameLines(input: FrameInput, into?: (bytes: number) => Uint8Array): Uint8Array {
   const { layout, bytes } = layoutOf(input)
   const json = new TextEncoder().encode(JSON.stringify({ ...layout, littleEndian: true }))
   if (8 + json.length > HEADER_BYTES) throw new FrameLinesError('line data header does not fit')
   const size = layout.rowBytes * layout.height
-  const out = new Uint8Array(HEADER_BYTES + size)
+  // Into the caller's buffer when given (a worker thread's, reused job after job); the header
+  // block is written whole, so nothing of the buffer's last use stays.
+  const out = into ? into(HEADER_BYTES + size) : new Uint8Array(HEADER_BYTES + size)
+  if (into) out.fill(0, 0, HEADER_BYTES)
   out.set(new TextEncoder().encode(MAGIC), 0)
   new DataView(out.buffer).setUint32(4, json.length, true)
   out.set(json, 8)

@@ -392,6 +392,13 @@ export class AnalysisScratch {
     return b
   }
 
+  /** n bytes left as their last user left them: for a caller that overwrites every byte (drawn images, line data). */
+  raw(name: string, n: number): Uint8Array {
+    let b = this.bufs.get(name)
+    if (!(b instanceof Uint8Array) || b.length !== n) this.bufs.set(name, b = new Uint8Array(n))
+    return b
+  }
+
   u8(name: string, n: number): Uint8Array {
     let b = this.bufs.get(name)
     if (!(b instanceof Uint8Array) || b.length !== n) this.bufs.set(name, b = new Uint8Array(n))

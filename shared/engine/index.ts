@@ -23,7 +23,7 @@ export { MASK_DEFAULT_WIDTH, MASK_HIGH, MASK_LOW, maskGeometry, renderMaskLayer 
 export { PALETTE } from './palette'
 export { renderPicture } from './picture'
 export { renderHistogram, renderVectorscope, renderWaveform } from './render'
-export type { WaveformMode } from './render'
+export type { ImageBuffer, WaveformMode } from './render'
 export { SKIN_TONE_DEGREES, WAVEFORM_GRATICULE_IRE, WAVEFORM_KEY_IRE, vectorscopeMarks, vectorscopePoint, waveformScaleMarks } from './graticule'
 export { BARS_PATTERN_LABELS, BARS_PATTERNS, BARS_TOLERANCE_SOURCE, BarsTolerancesSchema, barsTolerancesFor, DEFAULT_BARS_TOLERANCES, measureBars } from './bars'
 export type { BarFigure, BarsPattern, BarsReason, BarsResult, BarsTolerances, PlugeStep, SampleRegion } from './bars'

@@ -77,9 +77,11 @@ export function maskGeometry(width: number, height: number, maxWidth = MASK_DEFA
  * Laid over the picture by the frame page; mostly transparent, so its PNG is a few kB where
  * a painted copy of the picture was megabytes.
  */
-export function renderMaskLayer(mask: RangeMask, high: readonly [number, number, number], low: readonly [number, number, number]): Uint8Array {
+export function renderMaskLayer(mask: RangeMask, high: readonly [number, number, number], low: readonly [number, number, number], into?: (bytes: number) => Uint8Array): Uint8Array {
   const { data } = mask
-  const out = new Uint8Array(data.length * 4)
+  const out = into ? into(data.length * 4) : new Uint8Array(data.length * 4)
+  // A reused buffer holds the last layer: clear it, as a new one is.
+  if (into) out.fill(0)
   for (let i = 0, o = 0; i < data.length; i++, o += 4) {
     const m = data[i]!
     if (m === 0) continue

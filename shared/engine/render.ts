@@ -6,6 +6,21 @@ import { waveformRow } from './waveform'
 import type { Histograms, MatrixName, RgbaImage, VectorscopeDensity, WaveformDensity } from './types'
 
 
+/**
+ * Where a caller that draws image after image wants the pixels: given the byte count, a
+ * buffer of its own to draw into (reused from job to job, so the collector is not handed a
+ * new image of a few MB each time). The image then holds only until the buffer's next use.
+ */
+export type ImageBuffer = (bytes: number) => Uint8ClampedArray
+
+/** A copy of a cached layer to draw on: into the caller's buffer when one is given. */
+function startFrom(base: Uint8ClampedArray, out: ImageBuffer | undefined): Uint8ClampedArray {
+  if (!out) return new Uint8ClampedArray(base)
+  const data = out(base.length)
+  data.set(base)
+  return data
+}
+
 class Canvas {
   readonly data: Uint8ClampedArray
   constructor(readonly width: number, readonly height: number, bg: Rgb) {
@@ -115,12 +130,12 @@ function waveformGraticule(width: number, rows: number): Uint8ClampedArray {
 }
 
 /** Waveform (luma, flat, both overlaid, or the RGB split side by side) with an IRE graticule. */
-export function renderWaveform(w: WaveformDensity, mode: WaveformMode = 'luma'): RgbaImage {
+export function renderWaveform(w: WaveformDensity, mode: WaveformMode = 'luma', out?: ImageBuffer): RgbaImage {
   const panes = mode === 'rgb' ? 3 : 1
   const { columns, rows } = w
   const width = GUTTER + panes * columns + (panes - 1) * PANE_GAP
   const { base } = cachedLayer(`waveform ${width}×${rows}`, () => ({ base: waveformGraticule(width, rows) }))
-  const data = new Uint8ClampedArray(base)
+  const data = startFrom(base, out)
 
   // Full brightness at a sixteenth of a column's pixels in one cell: flat areas saturate,
   // a lone pixel still shows.
@@ -213,12 +228,12 @@ function vectorscopeLayers(v: VectorscopeDensity, matrix: MatrixName, scale: num
 }
 
 /** Vectorscope (U right, V up) with the 75 % and 100 % bar targets of the given matrix. */
-export function renderVectorscope(v: VectorscopeDensity, opts: { matrix?: MatrixName, scale?: number } = {}): RgbaImage {
+export function renderVectorscope(v: VectorscopeDensity, opts: { matrix?: MatrixName, scale?: number, out?: ImageBuffer } = {}): RgbaImage {
   const matrix = resolveMatrix(opts.matrix)
   const scale = Math.max(1, Math.floor(opts.scale ?? 2))
   const size = v.size * scale
   const { base, over } = cachedLayer(`vectorscope ${v.size}/${v.extent}×${scale} ${matrix}`, () => vectorscopeLayers(v, matrix, scale))
-  const data = new Uint8ClampedArray(base)
+  const data = startFrom(base, opts.out)
 
   const ref = Math.max(2, totalOf(v.data) / 400)
   const { r: tr, g: tg, b: tb, last } = traceTable(ref, PALETTE.vectorTrace, 1)

@@ -3,7 +3,8 @@
 // timer around each step, on the noisy 1080p PNGs the pipeline benchmark uploads. S3 and
 // MariaDB are left out (the pipeline benchmark measures them in place).
 // Run: npx tsx tests/bench/pipeline-steps.ts   (ROUNDS=n for more rounds; LW_BENCH_SOURCE=photos
-// for stills cut from real photographs, as bench:pipeline uploads by default)
+// for stills cut from real photographs, as bench:pipeline uploads by default; LW_NO_SCRATCH=1
+// to draw into new buffers each job, for comparison)
 //
 // Also prints the garbage collector's pauses per job (PerformanceObserver 'gc' entries on
 // this thread, as each analysis thread of the worker has its own heap); target < 10 ms.
@@ -25,6 +26,8 @@ import { configureSharp, renderFrameImages, type Step } from '../../workers/lib/
 import { ensurePhotoFrames, framePixels, HEIGHT, WIDTH } from './pipeline-frames.mjs'
 
 const ROUNDS = Number(process.env.ROUNDS ?? 7)
+// LW_NO_SCRATCH=1: every drawn image and the line data in new buffers, as before the worker reused them (for A/B).
+const LW_NO_SCRATCH = process.env.LW_NO_SCRATCH === '1'
 const PHOTOS = process.env.LW_BENCH_SOURCE === 'photos'
 const photoPaths = PHOTOS ? await ensurePhotoFrames(join(tmpdir(), 'linewise-photo-frames'), ROUNDS + 1) : []
 let gcMs = 0
@@ -63,8 +66,9 @@ for (let i = 0; i <= ROUNDS; i++) {
   const input = await step('decode', () => decodeBytes(bytes, { range: 'full' }))
   // As the worker does: density buffers reused from frame to frame.
   const a = await step('engine', () => analyseFrame(input, { matrix: '601', spec, keepDensities: true, scratch }))
-  const images = await renderFrameImages(input, a, '601', step)
-  const lines = await step('line data', () => encodeFrameLines(input))
+  // As the worker does: drawn images and line data into the same scratch.
+  const images = await renderFrameImages(input, a, '601', step, LW_NO_SCRATCH ? undefined : scratch)
+  const lines = await step('line data', () => encodeFrameLines(input, LW_NO_SCRATCH ? undefined : (n) => scratch.raw('line data', n)))
   if (i === ROUNDS) sizes = { ...Object.fromEntries(Object.entries(images).map(([k, v]) => [k, v.data.length])), lines: lines.length }
   await tick()
   if (i === 0) times.clear()

@@ -3,7 +3,7 @@
 // very code, step by step, rather than a copy of it.
 import sharp, { type Sharp } from 'sharp'
 import { PALETTE, renderMaskLayer, renderPicture, renderVectorscope, renderWaveform } from '../../shared/engine/index'
-import type { FrameAnalysis, FrameInput, MatrixName, RgbaImage } from '../../shared/engine/index'
+import type { AnalysisScratch, FrameAnalysis, FrameInput, ImageBuffer, MatrixName, RgbaImage } from '../../shared/engine/index'
 import { PICTURE_WIDTH, THUMB_WIDTH, type FrameImageKind } from '../../shared/utils/frame-images'
 
 /**
@@ -75,26 +75,36 @@ export async function renderViewingCopies(input: FrameInput, matrix: MatrixName,
  * The range overlay: the engine's mask (gathered in the measuring pass, on the verdict's own
  * level bins) as a transparent layer the frame page lays over the picture.
  */
-async function overlayLayer(analysis: FrameAnalysis, step: Step): Promise<FrameImage> {
+async function overlayLayer(analysis: FrameAnalysis, step: Step, scratch?: AnalysisScratch): Promise<FrameImage> {
   const mask = analysis.rangeMask!
-  const layer = await step('overlay layer', () => renderMaskLayer(mask, PALETTE.overlayHigh, PALETTE.overlayLow))
+  const into = scratch ? (n: number) => scratch.raw('image overlay', n) : undefined
+  const layer = await step('overlay layer', () => renderMaskLayer(mask, PALETTE.overlayHigh, PALETTE.overlayLow, into))
   return step('overlay png', async () => frameImage(await sharp(Buffer.from(layer.buffer, layer.byteOffset, layer.byteLength), { raw: { width: mask.width, height: mask.height, channels: 4 } })
     .png({ compressionLevel: PNG_LEVEL.overlay, adaptiveFiltering: false }).toBuffer(), 'image/png'))
 }
 
+/**
+ * Every image of an analysed frame. With a scratch (the one the analysis used, in a worker
+ * thread), the drawn RGBA images are drawn into its buffers, reused from job to job; the
+ * encoded images returned are new buffers either way.
+ */
 export async function renderFrameImages(
-  input: FrameInput, analysis: FrameAnalysis, matrix: MatrixName, step: Step = run,
+  input: FrameInput, analysis: FrameAnalysis, matrix: MatrixName, step: Step = run, scratch?: AnalysisScratch,
 ): Promise<Record<FrameImageKind, FrameImage>> {
   const w = analysis.waveform
   const v = analysis.vectorscope
   if (!w || !v || !analysis.rangeMask) throw new Error('the analysis was made without keepDensities: no scope data to draw')
   const { thumb, picture } = await renderViewingCopies(input, matrix, step)
-  const overlay = await overlayLayer(analysis, step)
+  const overlay = await overlayLayer(analysis, step, scratch)
+  const out = (name: string): ImageBuffer | undefined => scratch && ((n) => {
+    const b = scratch.raw(`image ${name}`, n)
+    return new Uint8ClampedArray(b.buffer, b.byteOffset, n)
+  })
   const scopes = {
-    'waveform-luma': () => renderWaveform(w, 'luma'),
-    'waveform-flat': () => renderWaveform(w, 'flat'),
-    'waveform-rgb': () => renderWaveform(w, 'rgb'),
-    'vectorscope': () => renderVectorscope(v, { matrix }),
+    'waveform-luma': () => renderWaveform(w, 'luma', out('waveform-luma')),
+    'waveform-flat': () => renderWaveform(w, 'flat', out('waveform-flat')),
+    'waveform-rgb': () => renderWaveform(w, 'rgb', out('waveform-rgb')),
+    'vectorscope': () => renderVectorscope(v, { matrix, out: out('vectorscope') }),
   } as const
   const images: Partial<Record<FrameImageKind, FrameImage>> = { thumb, picture, overlay }
   for (const [kind, render] of Object.entries(scopes) as Array<[keyof typeof scopes, () => RgbaImage]>) {
