@@ -24,9 +24,10 @@ import type { DeliverySpec } from './specs'
 type SpatialKey = 'rgbMaxLp' | 'rgbMinLp' | 'lumaMaxR3' | 'lumaMinR3' | 'compMaxR3' | 'compMinR3' | 'rgbMaxR3' | 'rgbMinR3'
 export const SPATIAL_KEYS: readonly SpatialKey[] = ['rgbMaxLp', 'rgbMinLp', 'lumaMaxR3', 'lumaMinR3', 'compMaxR3', 'compMinR3', 'rgbMaxR3', 'rgbMinR3']
 
-/** Per row, after the horizontal step: filtered R', G', B' levels; 3-wide min or max of each quantity's level bin. */
+/** One row's level bins per pixel, before the horizontal step: luma, Y' ± C, largest and smallest of R', G', B'. */
 interface RowBins { y: Int32Array, hi: Int32Array, lo: Int32Array, mx: Int32Array, mn: Int32Array }
 
+/** Per row, after the horizontal step: filtered R', G', B' levels; 3-wide min or max of each quantity's level bin. */
 interface BinRow {
   r: Float64Array, g: Float64Array, b: Float64Array
   yMn: Int32Array, yMx: Int32Array, hiMn: Int32Array, loMx: Int32Array, mxMn: Int32Array, mnMx: Int32Array
